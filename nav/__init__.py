@@ -1,0 +1,14 @@
+"""nav: a celestial-navigation sight-reduction workbench.
+
+A cross-check and teaching aid. It backs up, and never replaces, approved navigation
+practice, charts and instruments; the skipper stays responsible.
+
+Importing this package imports nothing heavy: each module is imported where it is used.
+"""
+
+__version__ = "0.1.0"
+
+CAUTION = (
+    "CAUTION: nav is a cross-check and teaching aid. It backs up, and never replaces, "
+    "approved navigation practice, charts and instruments. The skipper stays responsible."
+)

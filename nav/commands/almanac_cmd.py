@@ -1,0 +1,174 @@
+"""`nav almanac`: GHA, Dec, SHA, HP, SD and GHA Aries of any body, at an instant or as a table."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+import numpy as np
+
+from .. import CAUTION
+from ..angles import format_dm, format_lat
+from ..errors import NavInputError
+from ..timekeeping import ISO_EXAMPLE, parse_duration, parse_utc, time_range
+
+MAX_ROWS = 2_000_000
+GROUPS = {
+    "all": lambda: _almanac().body_names(),
+    "stars": lambda: _almanac().body_names()[6:],
+    "planets": lambda: list(_almanac().PLANETS),
+}
+
+
+def _almanac():
+    from .. import almanac
+
+    return almanac
+
+
+def register(sub) -> None:
+    p = sub.add_parser(
+        "almanac", help="GHA, Dec, SHA, HP, SD of bodies at an instant or over a span",
+        description="Almanac data for bodies (names, or the groups all, stars, planets), at one "
+                    "instant (--utc) or as a table (--from/--to/--step). Times are ISO 8601 with "
+                    "Z or an offset.")
+    p.add_argument("bodies", nargs="+", metavar="BODY")
+    p.add_argument("--utc", help=f"one instant, e.g. {ISO_EXAMPLE}")
+    p.add_argument("--from", dest="start", help="first instant of a table")
+    p.add_argument("--to", dest="stop", help="last instant of a table (inclusive)")
+    p.add_argument("--step", default="1h", help="table step: 30s, 10min, 1h, 1d (default 1h)")
+    p.add_argument("--json", action="store_true", help="print a JSON list, one object per body and instant")
+    p.set_defaults(func=run)
+
+
+def _instants(args):
+    if args.utc and (args.start or args.stop):
+        raise NavInputError("give either --utc or --from/--to, not both", field="utc",
+                            example="--utc 2026-03-20T18:42:10Z")
+    if args.utc:
+        return parse_utc(args.utc, "utc"), True
+    if not (args.start and args.stop):
+        raise NavInputError("give --utc, or both --from and --to", field="utc",
+                            example="--utc 2026-03-20T18:42:10Z")
+    start, stop = parse_utc(args.start, "from"), parse_utc(args.stop, "to")
+    step = parse_duration(args.step, "step")
+    return (start, stop, step), False
+
+
+def _expand_bodies(names: list[str]) -> list[str]:
+    al = _almanac()
+    out: list[str] = []
+    for n in names:
+        group = GROUPS.get(n.strip().lower())
+        out.extend(group() if group else [al.resolve_body(n)])
+    return list(dict.fromkeys(out))
+
+
+def run(args) -> int:
+    bodies = _expand_bodies(args.bodies)
+    when, single = _instants(args)
+    if single:
+        t64 = np.array([np.datetime64(when.replace(tzinfo=None), "us")])
+    else:
+        start, stop, step = when
+        if stop >= start:
+            n_rows = (int((stop - start) / step) + 1) * len(bodies)
+            if n_rows > MAX_ROWS:
+                raise NavInputError(
+                    f"that table would have {n_rows:,} rows ({len(bodies)} bodies); the limit is "
+                    f"{MAX_ROWS:,}", field="step", example="a larger --step, a shorter span or fewer bodies")
+        t64 = time_range(start, stop, step, max_rows=MAX_ROWS)
+    al = _almanac()
+    from ..ephemeris import check_range
+
+    check_range(t64, "utc" if single else "from")
+    results = al.almanac(bodies, t64)
+    out = sys.stdout
+    if args.json:
+        _write_json(out, results, t64)
+    elif single:
+        _write_single(out, results, t64[0])
+    else:
+        _write_table(out, results, t64)
+    return 0
+
+
+def _utc_strings(t64: np.ndarray) -> list[str]:
+    rounded = (t64 + np.timedelta64(500_000, "us")).astype("datetime64[s]")
+    return [s + "Z" for s in np.datetime_as_string(rounded, unit="s")]
+
+
+def _row_dict(rec, i: int, utc: str) -> dict:
+    d = {"body": rec.body, "utc": utc, "gha_deg": round(float(rec.gha_deg[i]), 7),
+         "dec_deg": round(float(rec.dec_deg[i]), 7)}
+    if rec.kind == "star":
+        d["sha_deg"] = round(float(rec.sha_deg[i]), 7)
+    d["gha_aries_deg"] = round(float(rec.gha_aries_deg[i]), 7)
+    d["ra_deg"] = round(float(rec.ra_deg[i]), 7)
+    if rec.hp_arcmin is not None:
+        d["hp_arcmin"] = round(float(rec.hp_arcmin[i]), 4)
+    if rec.sd_arcmin is not None:
+        d["sd_arcmin"] = round(float(rec.sd_arcmin[i]), 4)
+    if rec.magnitude is not None:
+        mag = rec.magnitude if np.ndim(rec.magnitude) == 0 else rec.magnitude[i]
+        if np.isfinite(mag):
+            d["magnitude"] = round(float(mag), 2)
+    return d
+
+
+def _write_json(out, results, t64) -> None:
+    utcs = _utc_strings(t64)
+    out.write("[")
+    first = True
+    for i, utc in enumerate(utcs):
+        for rec in results:
+            out.write(("\n  " if first else ",\n  ") + json.dumps(_row_dict(rec, i, utc)))
+            first = False
+    out.write("\n]\n")
+
+
+def _fmt_hp(rec, i):
+    return f"{float(rec.hp_arcmin[i]):5.1f}\u2032" if rec.hp_arcmin is not None else "      "
+
+
+def _fmt_sd(rec, i):
+    return f"{float(rec.sd_arcmin[i]):5.1f}\u2032" if rec.sd_arcmin is not None else "      "
+
+
+def _fmt_mag(rec, i):
+    if rec.magnitude is None:
+        return ""
+    mag = rec.magnitude if np.ndim(rec.magnitude) == 0 else rec.magnitude[i]
+    return f"{float(mag):+5.1f}" if np.isfinite(mag) else ""
+
+
+def _body_cells(rec, i) -> str:
+    sha = format_dm(float(rec.sha_deg[i]), deg_width=3) if rec.kind == "star" else " " * 9
+    return (f"{rec.body:<16}{format_dm(float(rec.gha_deg[i]), deg_width=3)}  "
+            f"{format_lat(float(rec.dec_deg[i])):>11}  {sha}  {_fmt_hp(rec, i)}  {_fmt_sd(rec, i)}  "
+            f"{_fmt_mag(rec, i)}")
+
+
+HEADER = f"{'body':<16}{'GHA':<9}  {'Dec':>11}  {'SHA':<9}  {'HP':>6}  {'SD':>6}  mag"
+
+
+def _write_single(out, results, t) -> None:
+    utc = _utc_strings(np.array([t]))[0]
+    out.write(f"Almanac for {utc[:10]} {utc[11:19]} UTC    "
+              f"GHA Aries {format_dm(float(results[0].gha_aries_deg[0]), deg_width=3)}\n\n")
+    out.write(HEADER.rstrip() + "\n")
+    for rec in results:
+        out.write(_body_cells(rec, 0).rstrip() + "\n")
+    out.write(f"\nApparent geocentric, true equator and equinox of date (DE421). {CAUTION}\n")
+
+
+def _write_table(out, results, t64) -> None:
+    utcs = _utc_strings(t64)
+    out.write(f"{'UTC':<21}{'GHA Aries':<11}" + HEADER.rstrip() + "\n")
+    for i, utc in enumerate(utcs):
+        aries = format_dm(float(results[0].gha_aries_deg[i]), deg_width=3)
+        for rec in results:
+            out.write(f"{utc:<21}{aries:<11}" + _body_cells(rec, i).rstrip() + "\n")
+    out.write(f"\nApparent geocentric, true equator and equinox of date (DE421). {CAUTION}\n")
+
+
