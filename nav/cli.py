@@ -16,6 +16,7 @@ from .errors import NavError
 # The subcommand modules, in the order their commands appear in --help.
 COMMAND_MODULES = (
     "nav.commands.almanac_cmd",
+    "nav.commands.sights_cmd",
 )
 
 EXIT_OK, EXIT_INPUT = 0, 2

@@ -1,0 +1,128 @@
+"""`nav reduce FILE.csv` and `nav fix FILE.csv`: the batch contract scripts rely on."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+from .. import CAUTION
+from ..errors import NavInputError
+
+SKIP_HELP = "compute from the valid rows and list the bad ones (default: refuse a partly bad file)"
+
+
+def register(sub) -> None:
+    p = sub.add_parser("reduce", help="reduce every sight of a CSV file, step by step",
+                       description="Reduce each sight of a batch CSV file: Hs, every correction, "
+                                   "Ho, GHA, Dec, LHA, Hc, Zn and the intercept.")
+    p.add_argument("file", metavar="SIGHTS.csv")
+    p.add_argument("--json", action="store_true", help="print a JSON list, one object per sight")
+    p.add_argument("--ap", action="store_true",
+                   help="reduce from the assumed position that sight-reduction tables use "
+                        "(whole-degree latitude and LHA), to check table work")
+    p.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
+    p.set_defaults(func=run_reduce)
+
+    f = sub.add_parser("fix", help="fix or running fix from the sights of a CSV file",
+                       description="Cross the lines of position of a batch CSV file into a fix "
+                                   "(least squares, iterated) at the time of the last sight, "
+                                   "earlier sights advanced by the DR run, with its error ellipse.")
+    f.add_argument("file", metavar="SIGHTS.csv")
+    f.add_argument("--json", action="store_true", help='print {"fix": {...}, "sights": [...]}')
+    f.add_argument("--confidence", type=float, default=0.95,
+                   help="probability the error ellipse is meant to cover (default 0.95)")
+    f.add_argument("--plot", metavar="FILE.png|FILE.pdf", help="also draw the plotting sheet")
+    f.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
+    f.set_defaults(func=run_fix)
+
+
+class _Reported(NavInputError):
+    """Errors already printed one per line; the CLI adds a summary line."""
+
+
+def _load(args):
+    from ..sightfile import read_sight_file
+
+    sf = read_sight_file(args.file)
+    for err in sf.errors:
+        print(f"nav {args.command}: {args.file}: {err}", file=sys.stderr)
+    if sf.errors and not args.skip_bad_rows:
+        raise _Reported(f"{len(sf.errors)} problem(s) in {args.file}; nothing was computed "
+                        "(mend them, or use --skip-bad-rows)", field="file")
+    if sf.skipped_rows:
+        print(f"nav {args.command}: skipped row(s) {', '.join(map(str, sf.skipped_rows))}",
+              file=sys.stderr)
+    if not sf.rows:
+        raise NavInputError("no valid sight left", field="file", example="utc,body,hs,dr_lat,dr_lon")
+    return sf.rows
+
+
+def _setting_notes(row) -> dict:
+    return {"eye_height_m": row.eye_height_m, "index_error_arcmin": row.index_error_arcmin,
+            "temperature_c": row.temperature_c, "pressure_hpa": row.pressure_hpa}
+
+
+def run_reduce(args) -> int:
+    from ..render import reduction_dict, reduction_lines, sight_title
+    from ..workflow import reduce_rows
+
+    rows = _load(args)
+    red = reduce_rows(rows, use_ap=args.ap)
+    if args.json:
+        out = []
+        for i, row in enumerate(rows):
+            d = reduction_dict(red.sight(i), row=row.row)
+            d.update(dr_lat_deg=round(row.dr_lat_deg, 7), dr_lon_deg=round(row.dr_lon_deg, 7),
+                     dr_given=row.dr_given)
+            out.append(d)
+        json.dump(out, sys.stdout, indent=1, ensure_ascii=False)
+        sys.stdout.write("\n")
+        return 0
+    for i, row in enumerate(rows):
+        s = red.sight(i)
+        print(sight_title(s, i + 1, row.row))
+        for line in reduction_lines(s, **_setting_notes(row)):
+            print(line)
+        print()
+    print(CAUTION)
+    return 0
+
+
+def run_fix(args) -> int:
+    from ..render import fix_dict, fix_lines, reduction_dict
+    from ..workflow import fix_from_rows
+
+    if not (0.0 < args.confidence < 1.0):
+        raise NavInputError("--confidence must be between 0 and 1", field="confidence",
+                            example="0.95")
+    rows = _load(args)
+    if len(rows) < 2:
+        raise NavInputError("a fix needs at least two sights", field="file",
+                            example="two or more rows of sights")
+    result = fix_from_rows(rows, confidence=args.confidence)
+    fix = result.fix
+    if args.plot:
+        from ..plotting import plot_fix_sheet
+
+        plot_fix_sheet(fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
+                       title=f"{fix.kind.capitalize()} from {args.file}", path=args.plot)
+    if args.json:
+        sights = []
+        for i, row in enumerate(rows):
+            d = reduction_dict(result.reductions.sight(i), row=row.row)
+            d["residual_nmi"] = round(fix.residuals_nmi[i], 4)
+            d["flagged"] = bool(fix.flags[i])
+            d["advanced_nmi"] = round(result.lops[i].advanced_nmi, 4)
+            sights.append(d)
+        doc = {"fix": fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
+               "sights": sights, "caution": CAUTION}
+        json.dump(doc, sys.stdout, indent=1, ensure_ascii=False)
+        sys.stdout.write("\n")
+        return 0
+    for line in fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg):
+        print(line)
+    if args.plot:
+        print(f"  plotting sheet written to {args.plot}")
+    print()
+    print(CAUTION)
+    return 0

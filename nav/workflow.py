@@ -1,0 +1,96 @@
+"""From validated sights to reductions, lines of position and a fix: the chain every edge uses.
+
+The batch commands, the shell and the demo all hold their sights as :class:`nav.sightfile.SightRow`
+(each with its DR at the sight's time) and call these functions; there is one way to turn sights
+into a fix. No printing, no disk.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from datetime import datetime
+from typing import Sequence
+
+import numpy as np
+
+from .fix import Fix, LOP, Sight, lop_at, solve_fix
+from .reduction import SightReductions, reduce_sights
+from .sailing import rhumb_line
+from .sightfile import SightRow
+from .timekeeping import to_datetime64
+
+
+@dataclass(frozen=True)
+class FixResult:
+    """A fix with everything that produced it: the reductions, the sights, the LOPs to plot."""
+
+    fix: Fix
+    reductions: SightReductions
+    sights: tuple[Sight, ...]
+    lops: tuple[LOP, ...]
+    dr_lat_deg: float
+    dr_lon_deg: float
+    rows: tuple[SightRow, ...]
+
+
+def reduce_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> SightReductions:
+    """Reduce validated sights in one vectorised call (arrays in the order of `rows`).
+
+    An error raised for the i-th sight is placed at that sight's own row number.
+    """
+    from .errors import NavInputError
+
+    try:
+        return reduce_sights(
+            [r.body for r in rows], to_datetime64(np.array([r.utc for r in rows], dtype=object)),
+            np.array([r.hs_deg for r in rows]),
+            limb=np.array([r.limb for r in rows], dtype=object),
+            index_error_arcmin=np.array([r.index_error_arcmin for r in rows]),
+            eye_height_m=np.array([r.eye_height_m for r in rows]),
+            horizon=np.array([r.horizon for r in rows], dtype=object),
+            temperature_c=np.array([r.temperature_c for r in rows]),
+            pressure_hpa=np.array([r.pressure_hpa for r in rows]),
+            lat_deg=np.array([r.dr_lat_deg for r in rows]),
+            lon_deg=np.array([r.dr_lon_deg for r in rows]), use_ap=use_ap)
+    except NavInputError as err:
+        if err.row is not None and 1 <= err.row <= len(rows):
+            err.row = rows[err.row - 1].row
+        raise
+
+
+def run_between(row: SightRow, fix_row: SightRow) -> tuple[float | None, float]:
+    """Course and speed that carry `row`'s DR to `fix_row`'s DR in the time between them."""
+    hours = (fix_row.utc - row.utc).total_seconds() / 3600.0
+    if abs(hours) < 1e-9:
+        return None, 0.0
+    course, dist = rhumb_line(row.dr_lat_deg, row.dr_lon_deg, fix_row.dr_lat_deg, fix_row.dr_lon_deg)
+    dist, course = float(dist), float(course)
+    if dist < 1e-9:
+        return None, 0.0
+    if hours < 0:  # a later sight retired to an earlier fix time: sail the reverse course
+        course, hours = (course + 180.0) % 360.0, -hours
+    return course, dist / hours
+
+
+def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
+                  confidence: float = 0.95, reductions: SightReductions | None = None) -> FixResult:
+    """The fix (or running fix) at the time of the last sight (or `fix_utc`).
+
+    Each earlier sight is advanced to the fix time by the vessel's run between the sight's DR and
+    the DR at the fix time (the last row's), which is the run the DR track says the vessel made.
+    """
+    rows = tuple(rows)
+    red = reductions if reductions is not None else reduce_rows(rows)
+    last = rows[-1]
+    fix_utc = fix_utc or last.utc
+    sights = []
+    for i, row in enumerate(rows):
+        course, speed = run_between(row, last)
+        sights.append(Sight(
+            ho_deg=float(red.ho_deg[i]), gha_deg=float(red.gha_deg[i]), dec_deg=float(red.dec_deg[i]),
+            utc=row.utc, body=row.body, sigma_arcmin=row.sigma_arcmin,
+            course_deg=course, speed_kn=speed, label=f"{row.body} {row.utc:%H:%M}"))
+    fix = solve_fix(sights, last.dr_lat_deg, last.dr_lon_deg, fix_utc, confidence=confidence)
+    lops = tuple(lop_at(s, row.dr_lat_deg, row.dr_lon_deg, fix_utc) for s, row in zip(sights, rows))
+    return FixResult(fix=fix, reductions=red, sights=tuple(sights), lops=lops,
+                     dr_lat_deg=last.dr_lat_deg, dr_lon_deg=last.dr_lon_deg, rows=rows)
