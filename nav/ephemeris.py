@@ -12,6 +12,7 @@
 
 from __future__ import annotations
 
+import atexit
 import functools
 import os
 from datetime import datetime
@@ -53,7 +54,9 @@ def ephemeris():
     """The DE421 kernel from skyfield-data, loaded once (memory-mapped by jplephem)."""
     from skyfield.api import load_file
 
-    return load_file(_de421_path())
+    kernel = load_file(_de421_path())
+    atexit.register(kernel.close)  # else `python -W error` reports the open file at exit
+    return kernel
 
 
 def check_range(t64: np.ndarray, field: str = "utc") -> None:

@@ -11,6 +11,7 @@ Conventions:
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass
 from datetime import datetime, timedelta, timezone
@@ -86,9 +87,13 @@ def parse_duration(text: str, field: str = "step") -> timedelta:
     if not m:
         raise NavInputError(f"'{text}' is not a duration", field=field, example="30s, 10min, 1h, 1d")
     seconds = float(m.group("v")) * _UNIT_S[(m.group("u") or "min").lower()]
-    if seconds <= 0:
+    try:
+        step = timedelta(seconds=seconds)
+    except OverflowError:
+        raise NavInputError(f"'{text}' is too long", field=field, example="1h") from None
+    if step <= timedelta(0):  # zero, or below the microsecond that nav keeps
         raise NavInputError(f"'{text}' must be longer than zero", field=field, example="1h")
-    return timedelta(seconds=seconds)
+    return step
 
 
 _ZD_RE = re.compile(r"^\s*(?P<sign>[+\-\u2212])?\s*(?P<h>\d{1,2})(?::(?P<m>\d{2}))?\s*$")
@@ -101,13 +106,14 @@ def parse_zone_description(text: str, field: str = "zone") -> timedelta:
         raise NavInputError(f"'{text}' is not a zone description", field=field,
                             example="+3 (west of Greenwich) or -2 (east)")
     hours, minutes = int(m.group("h")), int(m.group("m") or 0)
-    if hours > 14 or minutes > 59:
+    if minutes > 59 or hours * 60 + minutes > 14 * 60:
         raise NavInputError(f"'{text}' is outside -14 to +14 hours", field=field, example="+3")
     zd = timedelta(hours=hours, minutes=minutes)
     return -zd if m.group("sign") in ("-", "\u2212") else zd
 
 
-_WATCH_RE = re.compile(r"^\s*(?P<v>\d+(?:\.\d*)?)\s*s?\s*(?P<dir>fast|slow|f|s)\s*$", re.I)
+# No bare "s" for slow: "12s" would read as 12 seconds slow to one navigator and 12 seconds to another.
+_WATCH_RE = re.compile(r"^\s*(?P<v>\d+(?:\.\d*)?)\s*s?\s*(?P<dir>fast|slow|f)\s*$", re.I)
 
 
 def parse_watch_error(text: str, field: str = "watch_error") -> timedelta:
@@ -122,8 +128,11 @@ def parse_watch_error(text: str, field: str = "watch_error") -> timedelta:
         fast = m.group("dir").lower() in ("fast", "f")
         return timedelta(seconds=seconds if fast else -seconds)
     try:
-        return timedelta(seconds=float(s.replace("\u2212", "-")))
-    except ValueError:
+        seconds = float(s.replace("\u2212", "-"))
+        if not math.isfinite(seconds):
+            raise ValueError(text)
+        return timedelta(seconds=seconds)
+    except (ValueError, OverflowError):
         raise NavInputError(f"'{text}' is not a watch error", field=field,
                             example="12 fast, 3.5 slow or +12 (seconds fast)") from None
 
