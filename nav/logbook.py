@@ -1,0 +1,795 @@
+"""The passage log on disk: one JSON Lines file per passage, append-only, schema-checked.
+
+Format ``nav-passage-log``, version 1 (our own; summarised in sight_logs/README.md):
+
+- UTF-8, one JSON object per line, each line ending in ``\\n``; keys in a fixed order
+  (``id``, ``kind``, ``logged_utc``, then the fields of the kind in the order of :data:`SCHEMA`).
+- Line 1 is the ``passage`` header. Every entry has ``id`` (``e0001``, ``e0002`` ... increasing
+  through the file), ``kind`` and ``logged_utc`` (when it was written, ISO 8601 ``Z``).
+- A value as the user typed it is kept beside its parsed value: ``hs`` ("34 12.3") beside
+  ``hs_deg`` (34.205). The log stores and loads; it parses no input and does no navigation.
+- Nothing is ever rewritten. A ``strike`` or ``correct`` entry supersedes an earlier entry by its
+  id; the *effective* view applies them, :meth:`LoadedLog.history_of` keeps everything.
+- The one exception: a torn last line (a power cut mid-write) is copied to a side file
+  ``<name>.jsonl.torn-<UTC stamp>``; the copy is fsynced and read back, and only then is the main
+  file truncated to its last good newline; a ``repair`` entry then records where the bytes went,
+  and no later id reuses an id seen in torn bytes. :func:`load_log` never changes a file;
+  :meth:`PassageLog.open` (opening for writing) does this repair.
+- Strict by default: a bad line anywhere but at the end refuses the file, naming its line and
+  field. ``load_log(path, strict=False)`` reads the good lines and lists the problems (for an
+  instructor reading a damaged log); such a log is never appended to.
+- Durability: an append writes its line(s) with one ``write`` on an ``O_APPEND`` descriptor and
+  fsyncs before it returns; a new file (the log, a side file) is written under a temporary name,
+  fsynced, hard-linked into place (never overwriting) and its directory fsynced.
+
+Content is data only: never evaluated; strings are length-limited and may not hold control or
+invisible bidirectional characters; a file over :data:`MAX_LOG_BYTES` is refused unread.
+"""
+
+from __future__ import annotations
+
+import errno
+import glob
+import hashlib
+import json
+import math
+import numbers
+import os
+import re
+import secrets
+from dataclasses import dataclass
+from datetime import datetime
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any, Iterable, Mapping
+
+from . import __version__
+from .errors import NavError, NavInputError
+from .fields import HORIZONS, LIMBS
+from .timekeeping import ISO_EXAMPLE, UTC, format_utc, parse_utc
+
+try:
+    import fcntl
+except ImportError:  # pragma: no cover - Windows: no advisory lock; one writer at a time
+    fcntl = None
+
+FORMAT, FORMAT_VERSION = "nav-passage-log", 1
+MAX_LOG_BYTES = 50 * 1024 * 1024      # ~200 000 sights: far more than any passage
+MAX_LINE_BYTES = 64 * 1024
+MAX_TEXT, MAX_NOTE, MAX_LIST = 200, 4000, 200
+ID_RE = re.compile(r"^e(\d{4,9})$")
+COMMON = ("id", "kind", "logged_utc")
+SUPERSEDABLE = ("setting", "dr", "sight", "fix", "note")
+POSITION_BASES = ("dr", "ep", "gps", "visual", "other")
+_UTC_Z = re.compile(r"^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}(?:\.\d{1,6})?Z$")
+_BAD_TEXT = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\ud800-\udfff]")
+_BAD_NOTE = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\ud800-\udfff]")
+_TORN_ID = re.compile(rb'"id"\s*:\s*"e(\d{4,9})"')
+
+
+class LogFormatError(NavInputError):
+    """A passage log that cannot be read as one: names the file, the line and the field."""
+
+    def __init__(self, message: str, *, path=None, line: int | None = None,
+                 field: str | None = None, example: str | None = None):
+        super().__init__(message, field=field, example=example)
+        self.path, self.line = path, line
+
+    def __str__(self) -> str:
+        where = ([Path(self.path).name] if self.path else []) \
+            + ([f"line {self.line}"] if self.line else []) \
+            + ([f"field '{self.field}'"] if self.field else [])
+        return ", ".join(where) + ": " + self.reason + \
+            (f" (for example: {self.example})" if self.example else "")
+
+
+class LogWriteError(NavError):
+    """An append that did not complete: the entry must be treated as NOT logged."""
+
+
+@dataclass(frozen=True)
+class LogProblem:
+    line: int
+    field: str | None
+    message: str
+    severity: str = "error"       # "error" refuses strict loading; "warning" is a torn tail
+
+    def __str__(self) -> str:
+        return f"line {self.line}" + (f", field '{self.field}'" if self.field else "") \
+            + f": {self.message}"
+
+
+@dataclass(frozen=True)
+class TornTail:
+    line: int                     # the line the torn bytes start on
+    offset: int                   # byte offset just after the last good newline
+    data: bytes
+    reason: str
+
+
+@dataclass(frozen=True)
+class Entry:
+    """One entry, read-only; ``data`` is the whole JSON object (lists as tuples).
+
+    In the effective view a corrected entry keeps its original id, kind and logged_utc and
+    carries the replacement fields; ``revised_by`` and ``line`` are the latest ``correct``'s.
+    """
+
+    id: str
+    kind: str
+    logged_utc: str
+    line: int
+    data: Mapping[str, Any]
+    revised_by: str | None = None
+
+    def __getitem__(self, name: str) -> Any:
+        return self.data[name]
+
+    def get(self, name: str, default: Any = None) -> Any:
+        return self.data.get(name, default)
+
+    def to_dict(self) -> dict:
+        return _thaw(self.data)
+
+
+def _freeze(v):
+    if isinstance(v, dict):
+        return MappingProxyType({k: _freeze(x) for k, x in v.items()})
+    return tuple(_freeze(x) for x in v) if isinstance(v, list) else v
+
+
+def _thaw(v):
+    if isinstance(v, Mapping):
+        return {k: _thaw(x) for k, x in v.items()}
+    return [_thaw(x) for x in v] if isinstance(v, tuple) else v
+
+
+# ---------------------------------------------------------------- schema
+
+@dataclass(frozen=True)
+class Field:
+    type: str                     # text note hex id utc num int enum ids texts object
+    required: bool = False
+    lo: float | None = None
+    hi: float | None = None
+    hi_open: bool = False
+    choices: tuple = ()
+    max_len: int = MAX_TEXT
+    raw_of: str | None = None     # a value as typed: names the parsed field beside it
+
+
+def _typed(raw: str, parsed: str, lo: float, hi: float, *, required: bool = False,
+           hi_open: bool = False) -> dict:
+    """A value as typed (text, e.g. ``hs``) beside its parsed number (``hs_deg``)."""
+    return {raw: Field("text", required, raw_of=parsed),
+            parsed: Field("num", required, lo, hi, hi_open=hi_open)}
+
+
+_NOTE = Field("note", max_len=1000)
+_INSTRUMENT = {**_typed("index_error", "index_error_arcmin", -60, 60),
+               **_typed("eye_height", "eye_height_m", 0, 100),
+               **_typed("temperature", "temperature_c", -80, 60),
+               **_typed("pressure", "pressure_hpa", 800, 1100),
+               "horizon": Field("enum", choices=HORIZONS)}
+_WATCH = {**_typed("zone_description", "zone_description_h", -14, 14),
+          **_typed("watch_error", "watch_error_s", -86400, 86400)}
+
+SCHEMA: dict[str, dict[str, Field]] = {
+    "passage": {"format": Field("text", True), "format_version": Field("int", True, 1, 10**6),
+                "passage_uid": Field("hex", True, max_len=16),
+                "vessel": Field("text", True, max_len=120), "title": Field("text", True),
+                "software": Field("text")},
+    "setting": {**_INSTRUMENT, **_WATCH, "note": _NOTE},
+    "dr": {"utc": Field("utc", True), "time_text": Field("text"),
+           **_typed("lat", "lat_deg", -90, 90), **_typed("lon", "lon_deg", -180, 180),
+           **_typed("course", "course_deg", 0, 360, hi_open=True),
+           **_typed("speed", "speed_kn", 0, 100),
+           "position_basis": Field("enum", choices=POSITION_BASES), "note": _NOTE},
+    "sight": {"body": Field("text", True, max_len=40), "utc": Field("utc", True),
+              "time_source": Field("enum", True, choices=("utc", "watch")),
+              "time_text": Field("text"), **_WATCH,
+              **_typed("hs", "hs_deg", -1, 180, required=True),
+              "limb": Field("enum", choices=LIMBS), **_INSTRUMENT,
+              "sigma_arcmin": Field("num", lo=0, hi=60),
+              **_typed("dr_lat", "dr_lat_deg", -90, 90),
+              **_typed("dr_lon", "dr_lon_deg", -180, 180),
+              "source": Field("text"), "note": _NOTE},
+    "fix": {"utc": Field("utc", True), "lat_deg": Field("num", True, -90, 90),
+            "lon_deg": Field("num", True, -180, 180),
+            "fix_kind": Field("enum", True, choices=("fix", "running_fix")),
+            "sight_ids": Field("ids", True), "method": Field("text"),
+            "ellipse_semi_major_nmi": Field("num", lo=0, hi=10_000),
+            "ellipse_semi_minor_nmi": Field("num", lo=0, hi=10_000),
+            "ellipse_orientation_deg": Field("num", lo=0, hi=180, hi_open=True),
+            "ellipse_confidence": Field("num", lo=0, hi=1),
+            "warnings": Field("texts"), "note": _NOTE},
+    "note": {"text": Field("note", True, max_len=MAX_NOTE), "utc": Field("utc")},
+    "strike": {"target": Field("id", True), "reason": Field("text", True, max_len=500)},
+    "correct": {"target": Field("id", True), "reason": Field("text", True, max_len=500),
+                "replacement": Field("object", True)},
+    "repair": {"side_file": Field("text", True, max_len=300),
+               "torn_line": Field("int", True, 1, 10**9),
+               "torn_bytes": Field("int", True, 1, MAX_LINE_BYTES + 1),
+               "torn_sha256": Field("hex", True, max_len=64), "note": _NOTE},
+}
+_RAW_FIELDS = {n: f.raw_of for spec in SCHEMA.values() for n, f in spec.items() if f.raw_of}
+_PAIRS = {"dr": ("lat_deg", "lon_deg"), "sight": ("dr_lat_deg", "dr_lon_deg"),
+          "fix": ("ellipse_semi_major_nmi", "ellipse_semi_minor_nmi")}
+
+
+def _rules(kind: str, o: Mapping) -> tuple[str | None, str] | None:
+    """Checks across fields (presence and order only: the log does no navigation)."""
+    a, b = _PAIRS.get(kind, ("", ""))
+    if (a in o) != (b in o):
+        return (b if a in o else a), f"is missing: {a} and {b} go together"
+    if kind == "setting" and not set(o) - set(COMMON) - {"note"}:
+        return None, "a setting entry must set at least one value, such as eye_height_m"
+    if kind == "dr" and not {"lat_deg", "course_deg", "speed_kn"} & set(o):
+        return None, "a dr entry needs a position (lat_deg, lon_deg), a course_deg or a speed_kn"
+    if kind == "sight" and o.get("time_source") == "watch":
+        for name in ("zone_description_h", "watch_error_s"):
+            if name not in o:
+                return name, "is missing: a time read on a watch needs its ZD and watch error"
+    if kind == "fix":
+        if {"ellipse_orientation_deg", "ellipse_confidence"} & set(o) and a not in o:
+            return a, "is missing: the ellipse needs its semi-axes"
+        if o.get(b, 0) > o.get(a, math.inf):
+            return b, f"is larger than {a}"
+    return None
+
+
+def _check_value(f: Field, v: Any) -> str | None:
+    t = f.type
+    if t in ("num", "int"):
+        if isinstance(v, bool) or not isinstance(v, (int, float) if t == "num" else int):
+            return "must be a number" if t == "num" else "must be a whole number"
+        if isinstance(v, float) and not math.isfinite(v):
+            return "must be a finite number"
+        if v < f.lo or v > f.hi or f.hi_open and v == f.hi:
+            return f"is {v}, outside {f.lo:g} to {f.hi:g}" + (" (exclusive)" if f.hi_open else "")
+    elif t in ("ids", "texts"):
+        if not isinstance(v, list) or not (v or t == "texts") or len(v) > MAX_LIST:
+            return f"must be a list of {int(t == 'ids')} to {MAX_LIST} items"
+        item = Field("id") if t == "ids" else Field("text", True)
+        return next((f"item {i} {m}" for i, x in enumerate(v, 1) if (m := _check_value(item, x))),
+                    None)
+    elif t == "object":
+        return None if isinstance(v, dict) else "must be a JSON object"
+    elif not isinstance(v, str):
+        return "must be text (a JSON string)"
+    elif t == "id" and not ID_RE.match(v):
+        return "must be an entry id such as e0042"
+    elif t == "enum" and v not in f.choices:
+        return "must be one of: " + ", ".join(f.choices)
+    elif t == "hex" and not (len(v) == f.max_len and re.fullmatch("[0-9a-f]+", v)):
+        return f"must be {f.max_len} lower-case hexadecimal digits"
+    elif t == "utc":
+        if not _UTC_Z.match(v):
+            return "must be an ISO 8601 UTC time ending in Z, such as 2026-03-20T18:42:10Z"
+        try:
+            parse_utc(v)
+        except NavInputError as err:
+            return err.reason
+    elif t in ("text", "note"):
+        if len(v) > f.max_len:
+            return f"is {len(v)} characters long; the limit is {f.max_len}"
+        if f.required and not v.strip():
+            return "must not be empty"
+        bad = (_BAD_NOTE if t == "note" else _BAD_TEXT).search(v)
+        if bad:
+            return f"holds the control or invisible character U+{ord(bad.group()):04X}"
+    return None
+
+
+def _check_entry(o: Mapping, replacement_of: str | None = None) -> tuple[str | None, str] | None:
+    """Schema check of one entry, or of a correction's replacement fields for a kind."""
+    kind = replacement_of
+    if kind is None:
+        for name in COMMON:
+            if name not in o:
+                return name, "is missing"
+        kind = o["kind"]
+        if not isinstance(kind, str) or kind not in SCHEMA:
+            return "kind", f"unknown kind {str(kind)[:40]!r}; known kinds: " + ", ".join(SCHEMA)
+        for name, f in (("id", Field("id")), ("logged_utc", Field("utc"))):
+            msg = _check_value(f, o[name])
+            if msg:
+                return name, msg
+    spec = SCHEMA[kind]
+    for name in o:
+        if name not in spec and (replacement_of or name not in COMMON):
+            return str(name)[:40], f"is not a field of a {kind} entry"
+    for name, f in spec.items():
+        if name not in o:
+            if f.required:
+                return name, "is missing"
+            continue
+        msg = _check_value(f, o[name])
+        if msg:
+            return name, msg
+        if f.raw_of and f.raw_of not in o:
+            return f.raw_of, f"is missing ('{name}' as typed is given)"
+    return _rules(kind, o)
+
+
+def _no_dupes(pairs):
+    if len({k for k, _ in pairs}) != len(pairs):
+        raise ValueError("a key appears twice in one object")
+    return dict(pairs)
+
+
+def _no_constant(name):
+    raise ValueError(f"{name} is not a number JSON allows")
+
+
+def _decode_line(raw: bytes) -> tuple[dict | None, str | None]:
+    """One line -> object, or why it is not a JSON object in UTF-8."""
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as err:
+        return None, f"not UTF-8 text (byte 0x{raw[err.start]:02x} at column {err.start + 1})"
+    if not text.strip():
+        return None, "an empty line"
+    try:
+        obj = json.loads(text, object_pairs_hook=_no_dupes, parse_constant=_no_constant)
+    except json.JSONDecodeError as err:
+        return None, f"not valid JSON ({err.msg} at column {err.colno})"
+    except (ValueError, RecursionError) as err:
+        return None, f"not valid JSON ({err})"
+    return (obj, None) if isinstance(obj, dict) else (None, "not a JSON object")
+
+
+# ---------------------------------------------------------------- the loaded log
+
+class LoadedLog:
+    """Every good entry in file order, the effective view, and the problems found."""
+
+    def __init__(self, path: Path | str):
+        self.path = Path(path)
+        self.entries: list[Entry] = []
+        self.problems: list[LogProblem] = []
+        self.torn_tail: TornTail | None = None
+        self.set_aside: Path | None = None     # where PassageLog.open put a torn tail
+        self._by_id: dict[str, Entry] = {}
+        self._chain: dict[str, list[Entry]] = {}
+        self._struck: dict[str, Entry] = {}
+        self._max_num = self._id_floor = self._lines = 0
+
+    @property
+    def header(self) -> Entry:
+        return self.entries[0]
+
+    @property
+    def errors(self) -> list[LogProblem]:
+        return [p for p in self.problems if p.severity == "error"]
+
+    def next_id(self) -> str:
+        return f"e{max(self._max_num, self._id_floor) + 1:04d}"
+
+    def entry_by_id(self, eid: str) -> Entry | None:
+        """The entry exactly as written (any kind), or None."""
+        return self._by_id.get(eid)
+
+    def effective_by_id(self, eid: str) -> Entry | None:
+        """The entry as it stands: None if struck (or unknown), the latest replacement if corrected."""
+        e = self._by_id.get(eid)
+        if e is None or e.kind not in SUPERSEDABLE or eid in self._struck:
+            return None
+        if not self._chain.get(eid):
+            return e
+        last = self._chain[eid][-1]
+        data = {"id": e.id, "kind": e.kind, "logged_utc": e.logged_utc,
+                **_thaw(last["replacement"])}
+        return Entry(e.id, e.kind, e.logged_utc, last.line, _freeze(data), revised_by=last.id)
+
+    def effective_entries(self, kind: str | None = None) -> list[Entry]:
+        """Entries as they stand (struck ones out, corrected ones replaced), in logged order.
+
+        The header, strikes and corrections are not listed (see :meth:`history_of`); repair
+        entries are, so that a reader sees that a torn tail was set aside.
+        """
+        out = []
+        for e in self.entries:
+            if kind is not None and e.kind != kind or e.kind in ("passage", "strike", "correct"):
+                continue
+            cur = e if e.kind == "repair" else self.effective_by_id(e.id)
+            if cur is not None:
+                out.append(cur)
+        return out
+
+    def history_of(self, eid: str) -> list[Entry]:
+        """The original entry, then every strike/correction of it in file order."""
+        e = self._by_id.get(eid)
+        if e is None:
+            raise NavInputError(f"no entry {eid} in this log", field="id", example="e0002")
+        if e.kind in ("strike", "correct"):
+            e = self._by_id[e["target"]]
+        return [e, *self._chain.get(e.id, [])]
+
+    # -- building, for the loader and for PassageLog
+    def _admit(self, o: Mapping) -> tuple[str | None, str] | None:
+        """Checks against the entries before this one: ids, targets, references."""
+        eid, kind = o["id"], o["kind"]
+        if eid in self._by_id:
+            return "id", f"duplicate id {eid} (first at line {self._by_id[eid].line})"
+        if int(eid[1:]) <= self._max_num:
+            return "id", f"{eid} comes after e{self._max_num:04d}: ids must increase"
+        if kind == "passage" and self.entries:
+            return "kind", "a second passage header: a log holds one passage"
+        if kind in ("strike", "correct"):
+            t = o["target"]
+            target = self._by_id.get(t)
+            if target is None:
+                return "target", f"names {t}, which is not an earlier entry of this log"
+            if target.kind not in SUPERSEDABLE:
+                hint = f"; name {target['target']} instead" if "target" in target.data else ""
+                return "target", f"names {t}, a {target.kind} entry, which cannot be superseded{hint}"
+            if t in self._struck:
+                s = self._struck[t]
+                return "target", f"{t} was already struck by {s.id} (line {s.line})"
+            if kind == "correct":
+                bad = _check_entry(o["replacement"], replacement_of=target.kind)
+                if bad:
+                    return "replacement" + (f".{bad[0]}" if bad[0] else ""), bad[1]
+        if kind == "fix":
+            for sid in o["sight_ids"]:
+                e = self._by_id.get(sid)
+                if e is None or e.kind != "sight":
+                    what = "not an earlier entry" if e is None else f"a {e.kind} entry, not a sight"
+                    return "sight_ids", f"names {sid}, {what}"
+            if len(set(o["sight_ids"])) != len(o["sight_ids"]):
+                return "sight_ids", "names one sight twice"
+        return None
+
+    def _add(self, o: dict, line: int) -> Entry:
+        e = Entry(o["id"], o["kind"], o["logged_utc"], line, _freeze(o))
+        self.entries.append(e)
+        self._by_id[e.id] = e
+        self._max_num, self._lines = int(e.id[1:]), line
+        if e.kind in ("strike", "correct"):
+            self._chain.setdefault(e["target"], []).append(e)
+            if e.kind == "strike":
+                self._struck[e["target"]] = e
+        return e
+
+    def _take_line(self, raw: bytes, line: int) -> None:
+        self._lines = line
+        obj, msg = (None, f"is {len(raw)} bytes long; the limit is {MAX_LINE_BYTES}") \
+            if len(raw) > MAX_LINE_BYTES else _decode_line(raw)
+        bad = (None, msg) if msg else (_check_entry(obj) or self._admit(obj))
+        if bad:
+            self.problems.append(LogProblem(line, bad[0], bad[1]))
+        else:
+            self._add(obj, line)
+
+    def _state(self) -> dict:
+        """A copy of the index (PassageLog stages a batch on it and keeps it if all is well)."""
+        keys = LoadedLog(self.path).__dict__
+        s = {k: (v.copy() if isinstance(v, (list, dict)) else v)
+             for k, v in self.__dict__.items() if k in keys}
+        s["_chain"] = {k: v.copy() for k, v in self._chain.items()}
+        return s
+
+
+def _read_bytes(path: Path, max_bytes: int) -> bytes:
+    try:
+        with open(path, "rb") as f:
+            size = os.fstat(f.fileno()).st_size
+            data = f.read(max_bytes + 1) if size <= max_bytes else b""
+    except OSError as err:
+        raise LogFormatError("no such passage log" if isinstance(err, FileNotFoundError)
+                             else f"cannot be read ({err.strerror})", path=path) from None
+    if size > max_bytes or len(data) > max_bytes:
+        raise LogFormatError(f"is {max(size, len(data)):,} bytes, over the {max_bytes / 2**20:g} MB "
+                             "limit of a passage log; it was not read", path=path)
+    return data
+
+
+def _parse(log: LoadedLog, data: bytes, strict: bool) -> LoadedLog:
+    path, end = log.path, data.rfind(b"\n") + 1
+    lines, torn = data[:end].split(b"\n")[:-1], None
+    if end < len(data):
+        torn = TornTail(len(lines) + 1, end, data[end:], "the last line has no newline")
+    elif len(lines) > 1 and _decode_line(lines[-1])[1]:
+        start = end - len(lines[-1]) - 1
+        torn = TornTail(len(lines), start, data[start:],
+                        "the last line is " + _decode_line(lines.pop())[1])
+    if torn and len(torn.data) > MAX_LINE_BYTES + 1:   # far longer than any line nav writes
+        raise LogFormatError(f"ends with {len(torn.data):,} bytes that are not a line nav wrote",
+                             path=path, line=torn.line)
+    if not lines:
+        raise LogFormatError("is not a nav passage log (" + ("it is empty)" if not data else
+                             "it has no complete first line)"), path=path, line=1)
+    head = lines[0][3:] if lines[0].startswith(b"\xef\xbb\xbf") else lines[0]
+    obj, msg = _decode_line(head)
+    if msg or obj.get("kind") != "passage" or obj.get("format") != FORMAT:
+        raise LogFormatError(f"is not a nav passage log (line 1 is {msg or 'not its header'})",
+                             path=path, line=1, example=f'{{"kind": "passage", "format": "{FORMAT}"')
+    version = obj.get("format_version")
+    if version != FORMAT_VERSION or isinstance(version, bool):
+        newer = "written by a newer nav; " if isinstance(version, int) and version > 1 else ""
+        raise LogFormatError(f"format_version {str(version)[:20]}: {newer}this nav reads version "
+                             f"{FORMAT_VERSION}", path=path, line=1, field="format_version")
+    for i, raw in enumerate(lines, start=1):
+        log._take_line(head if i == 1 else raw, i)
+        if log.problems and i == 1:
+            p = log.problems[0]
+            raise LogFormatError(p.message, path=path, line=1, field=p.field)
+    if torn:
+        log.torn_tail = torn
+        log._id_floor = max([log._id_floor, *map(int, _TORN_ID.findall(torn.data))])
+        log.problems.append(LogProblem(torn.line, None, f"torn last line ({len(torn.data)} bytes):"
+                                       f" {torn.reason}; it is set aside when the log is opened "
+                                       "for writing", "warning"))
+    if strict and log.errors:
+        first, more = log.errors[0], len(log.errors) - 1
+        raise LogFormatError(first.message + (f" ({more} more problems)" if more else "")
+                             + "; the log was not opened and nothing was changed",
+                             path=path, line=first.line, field=first.field)
+    return log
+
+
+def load_log(path: Path | str, *, strict: bool = True, max_bytes: int = MAX_LOG_BYTES) -> LoadedLog:
+    """Read a passage log; never changes the file. Strict: any bad line raises LogFormatError.
+
+    A reader does not lock: while a writer is mid-append it may report a torn last line."""
+    path = Path(path)
+    return _parse(LoadedLog(path), _read_bytes(path, max_bytes), strict)
+
+
+# ---------------------------------------------------------------- writing
+
+def _normalise(v: Any, name: str) -> Any:
+    """Caller values -> JSON values (aware datetimes -> ISO 8601 Z); None values are left out."""
+    if isinstance(v, datetime):
+        if v.tzinfo is None:
+            raise NavInputError("a time without a time zone", field=name, example=ISO_EXAMPLE)
+        v = v.astimezone(UTC)
+        return v.strftime("%Y-%m-%dT%H:%M:%S") + v.strftime(".%f").rstrip("0").rstrip(".") + "Z"
+    if isinstance(v, numbers.Number) and not isinstance(v, bool):
+        return int(v) if isinstance(v, numbers.Integral) else float(v)
+    if isinstance(v, Mapping):
+        if not all(isinstance(k, str) for k in v):
+            raise NavInputError("field names must be text", field=name)
+        return {k: _normalise(x, k) for k, x in v.items() if x is not None}
+    if isinstance(v, (list, tuple)):
+        return [_normalise(x, name) for x in v]
+    if v is None or isinstance(v, (str, bool)):
+        return v
+    raise NavInputError(f"a {type(v).__name__} cannot be stored in the log", field=name)
+
+
+def _encode(o: dict, replacement_kind: str | None = None) -> bytes:
+    """The line of an entry: fixed key order, UTF-8, no NaN, newline-terminated."""
+    out = {k: o[k] for k in (*COMMON, *SCHEMA[o["kind"]]) if k in o}
+    if replacement_kind:
+        out["replacement"] = {k: o["replacement"][k] for k in SCHEMA[replacement_kind]
+                              if k in o["replacement"]}
+    return (json.dumps(out, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+            + "\n").encode("utf-8")
+
+
+def _write_fully(fd: int, data: bytes) -> None:
+    """One os.write (more only if the kernel writes short). The crash test tears lines here."""
+    view = memoryview(data)
+    while view:
+        view = view[os.write(fd, view):]
+
+
+def _fsync_dir(directory: Path) -> None:
+    try:
+        dfd = os.open(directory, os.O_RDONLY | getattr(os, "O_DIRECTORY", 0))
+    except OSError:  # pragma: no cover - a platform that cannot open a directory (Windows)
+        return
+    try:
+        os.fsync(dfd)
+    except OSError as err:  # pragma: no cover - a file system that cannot sync a directory
+        if err.errno not in (errno.EINVAL, errno.ENOTSUP):
+            raise
+    finally:
+        os.close(dfd)
+
+
+def _write_new_file(candidates: list[Path], data: bytes) -> Path:
+    """Write data under the first free candidate name, complete or not at all: a temporary file
+    is written and fsynced, hard-linked under the name (a link never replaces a file), removed,
+    and the directory fsynced."""
+    tmp = candidates[0].with_name(f".{candidates[0].name}.{secrets.token_hex(4)}.tmp")
+    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_CLOEXEC", 0), 0o644)
+    try:
+        _write_fully(fd, data)
+        os.fsync(fd)
+    finally:
+        os.close(fd)
+    try:
+        for target in candidates:
+            try:
+                os.link(tmp, target)
+                break
+            except FileExistsError:
+                continue
+        else:
+            raise FileExistsError(candidates[-1])
+    finally:
+        os.unlink(tmp)
+    _fsync_dir(tmp.parent)
+    return target
+
+
+def new_log(path: Path | str, vessel: str, title: str, *,
+            max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
+    """Create a passage log holding its header, and open it. An existing file is never replaced."""
+    path = Path(path)
+    header = {"id": "e0001", "kind": "passage", "logged_utc": format_utc(datetime.now(UTC)),
+              "format": FORMAT, "format_version": FORMAT_VERSION,
+              "passage_uid": secrets.token_hex(8), "vessel": vessel, "title": title,
+              "software": f"nav {__version__}"}
+    bad = _check_entry(header)
+    if bad:
+        raise NavInputError(bad[1], field=bad[0], example="vessel 'Kittiwake', title 'Azores run'")
+    exists = NavInputError(f"{path} already exists; a passage log is never overwritten",
+                           field="path", example=str(path.with_name(path.stem + "-2.jsonl")))
+    if path.exists():
+        raise exists
+    try:
+        if not path.parent.is_dir():
+            path.parent.mkdir(parents=True)
+            _fsync_dir(path.parent.parent)
+        _write_new_file([path], _encode(header))
+    except OSError as err:
+        if isinstance(err, FileExistsError) and path.exists():
+            raise exists from None
+        raise LogWriteError(f"{path}: the log could not be created ({err.strerror})") from None
+    return PassageLog.open(path, max_bytes=max_bytes)
+
+
+class PassageLog(LoadedLog):
+    """A passage log open for appending; every append is on disk (fsynced) when it returns.
+
+    One writer at a time: the open log holds an exclusive advisory lock (flock) until closed, and
+    a second writer is refused, so ids stay unique and increasing. Readers (load_log) need no lock.
+    """
+
+    def __init__(self, path: Path, fd: int, max_bytes: int):
+        super().__init__(path)
+        self._fd, self._size, self._max_bytes, self._broken = fd, 0, max_bytes, None
+
+    @classmethod
+    def open(cls, path: Path | str, *, max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
+        """Open for appending: strict loading, then a torn tail set aside (see the module doc)."""
+        path = Path(path)
+        try:
+            fd = os.open(path, os.O_WRONLY | os.O_APPEND | getattr(os, "O_CLOEXEC", 0))
+        except OSError as err:
+            raise LogFormatError("no such passage log" if isinstance(err, FileNotFoundError)
+                                 else f"cannot be opened for writing ({err.strerror})",
+                                 path=path) from None
+        try:
+            if fcntl is not None:
+                try:
+                    fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+                except BlockingIOError:
+                    raise LogFormatError("is open for writing in another nav session; close it "
+                                         "there first", path=path) from None
+            self = cls(path, fd, max_bytes)
+            data = _read_bytes(path, max_bytes)
+            _parse(self, data, strict=True)
+            self._size, self._id_floor = len(data), max(self._id_floor, _side_file_floor(path))
+            if self.torn_tail:
+                self._set_aside_torn()
+        except BaseException:
+            os.close(fd)
+            raise
+        return self
+
+    def append(self, entry: Mapping) -> Entry:
+        """Check, write one line, fsync, return the entry as logged. Confirm to the user after."""
+        return self.append_many([entry])[0]
+
+    def append_many(self, entries: Iterable[Mapping]) -> list[Entry]:
+        """Every entry is checked first (one bad entry: nothing is written), then all are
+        written with one write and made durable by one fsync: a batch is confirmed as a whole."""
+        if self._fd is None or self._broken:
+            raise LogWriteError(f"{self.path.name}: " + ("the log is closed" if self._fd is None
+                                                         else self._broken + "; reopen the log"))
+        trial = LoadedLog(self.path)
+        trial.__dict__.update(self._state())
+        lines, added, entries = [], [], list(entries)
+        for n, given in enumerate(entries, 1):
+            where = f" (entry {n} of {len(entries)})" if len(entries) > 1 else ""
+            if not isinstance(given, Mapping):
+                raise NavInputError("an entry must be a mapping of field names to values" + where)
+            o = _normalise(given, "entry")
+            if "id" in o or "logged_utc" in o:
+                raise NavInputError("id and logged_utc are assigned by the log" + where, field="id")
+            o = {"id": trial.next_id(), "logged_utc": format_utc(datetime.now(UTC)), **o}
+            bad = _check_entry(o) or trial._admit(o)
+            if bad:
+                raise NavInputError(bad[1] + where, field=bad[0])
+            line = _encode(o, o["kind"] == "correct" and trial.entry_by_id(o["target"]).kind)
+            if len(line) > MAX_LINE_BYTES:
+                raise NavInputError(f"the entry is {len(line):,} bytes as a line; the limit is "
+                                    f"{MAX_LINE_BYTES:,}" + where, field="entry")
+            back = _decode_line(line[:-1])[0]
+            if back != o:  # pragma: no cover - a line that would not read back as written
+                raise NavInputError("the entry does not read back as written" + where)
+            added.append(trial._add(back, trial._lines + 1))
+            lines.append(line)
+        blob = b"".join(lines)
+        if self._size + len(blob) > self._max_bytes:
+            raise NavInputError(f"the log would pass its {self._max_bytes / 2**20:g} MB limit; "
+                                "start a new passage log", field="entry")
+        try:
+            if os.fstat(self._fd).st_size != self._size:
+                self._broken = "the file was changed by something else since it was opened"
+                raise LogWriteError(f"{self.path.name}: {self._broken}; nothing was written; "
+                                    "reopen the log")
+            _write_fully(self._fd, blob)
+            os.fsync(self._fd)
+        except OSError as err:
+            self._broken = f"an append failed ({err.strerror})"
+            raise LogWriteError(f"{self.path.name}: the entry was NOT logged ({err.strerror}); "
+                                "reopen the log") from None
+        self._size += len(blob)
+        self.__dict__.update(trial.__dict__)
+        return added
+
+    def strike(self, target: str, reason: str) -> Entry:
+        return self.append({"kind": "strike", "target": target, "reason": reason})
+
+    def correct(self, target: str, reason: str, changes: Mapping) -> Entry:
+        """Supersede an entry by its current fields with ``changes`` applied (None removes one)."""
+        cur = self.effective_by_id(target)
+        if cur is None:
+            raise NavInputError(f"{target} is not an entry that stands in this log (unknown, "
+                                "struck, or of a kind that cannot be corrected)", field="target")
+        fields = {k: v for k, v in cur.to_dict().items() if k not in COMMON}
+        return self.append({"kind": "correct", "target": target, "reason": reason,
+                            "replacement": {**fields, **changes}})
+
+    def close(self) -> None:
+        if self._fd is not None:
+            os.close(self._fd)          # releases the lock
+            self._fd = None
+
+    def __enter__(self) -> "PassageLog":
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+    def _set_aside_torn(self) -> None:
+        """Copy the torn tail to a side file (fsynced, read back), then truncate; log a repair."""
+        t = self.torn_tail
+        stamp = datetime.now(UTC).strftime("%Y%m%dT%H%M%SZ")
+        try:
+            side = _write_new_file([self.path.with_name(f"{self.path.name}.torn-{stamp}"
+                                                        + (f"-{i}" if i else ""))
+                                    for i in range(100)], t.data)
+            if side.read_bytes() != t.data:  # pragma: no cover - a disk that does not keep data
+                raise OSError(errno.EIO, f"{side.name} does not hold the torn bytes")
+            os.ftruncate(self._fd, t.offset)
+            os.fsync(self._fd)
+        except OSError as err:
+            raise LogWriteError(f"{self.path.name}: its torn last line could not be set aside "
+                                f"({err.strerror}); the log was not opened") from None
+        self._size, self._lines, self.set_aside = t.offset, t.line - 1, side
+        self.problems = [p for p in self.problems if p.severity != "warning"] + [LogProblem(
+            t.line, None, f"torn last line ({len(t.data)} bytes): {t.reason}; set aside in "
+            f"{side.name}", "warning")]
+        self.append({"kind": "repair", "side_file": side.name, "torn_line": t.line,
+                     "torn_bytes": len(t.data), "torn_sha256": hashlib.sha256(t.data).hexdigest(),
+                     "note": t.reason})
+
+
+def _side_file_floor(path: Path) -> int:
+    """The highest id seen in this log's torn-tail side files (no later id reuses it)."""
+    best = 0
+    for side in glob.glob(glob.escape(str(path)) + ".torn-*"):
+        try:
+            with open(side, "rb") as f:
+                best = max([best, *map(int, _TORN_ID.findall(f.read(MAX_LINE_BYTES + 2)))])
+        except OSError as err:
+            raise LogFormatError(f"its side file {Path(side).name} cannot be read "
+                                 f"({err.strerror})", path=path) from None
+    return best
