@@ -58,6 +58,27 @@ def reduce_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> SightReduc
         raise
 
 
+def refused_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> list:
+    """The errors of every sight that the chain refuses (e.g. an apparent altitude below −1°).
+
+    Called only after :func:`reduce_rows` failed: halves the rows until each error is pinned to
+    its own row, so a few bad sights among many cost a few vectorised calls, not one per row.
+    """
+    from .errors import NavInputError
+
+    rows = list(rows)
+    if not rows:
+        return []
+    try:
+        reduce_rows(rows, use_ap=use_ap)
+        return []
+    except NavInputError as err:
+        if len(rows) == 1:
+            return [err if err.row is not None else err.at_row(rows[0].row)]
+    mid = len(rows) // 2
+    return refused_rows(rows[:mid], use_ap=use_ap) + refused_rows(rows[mid:], use_ap=use_ap)
+
+
 def run_between(row: SightRow, fix_row: SightRow) -> tuple[float | None, float]:
     """Course and speed that carry `row`'s DR to `fix_row`'s DR in the time between them."""
     hours = (fix_row.utc - row.utc).total_seconds() / 3600.0
@@ -73,11 +94,14 @@ def run_between(row: SightRow, fix_row: SightRow) -> tuple[float | None, float]:
 
 
 def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
-                  confidence: float = 0.95, reductions: SightReductions | None = None) -> FixResult:
+                  confidence: float = 0.95, reductions: SightReductions | None = None,
+                  runs: Sequence[tuple[float | None, float]] | None = None) -> FixResult:
     """The fix (or running fix) at the time of the last sight (or `fix_utc`).
 
-    Each earlier sight is advanced to the fix time by the vessel's run between the sight's DR and
-    the DR at the fix time (the last row's), which is the run the DR track says the vessel made.
+    Each earlier sight is advanced to the fix time by the vessel's run: by default the run between
+    the sight's DR and the DR at the fix time (the last row's), which is the run a DR track of
+    course and speed says the vessel made; or `runs`, one (course_deg, speed_kn) per row, where
+    the caller knows the legs sailed (a passage log whose DR was reset by a fix in between).
     """
     rows = tuple(rows)
     red = reductions if reductions is not None else reduce_rows(rows)
@@ -85,7 +109,7 @@ def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
     fix_utc = fix_utc or last.utc
     sights = []
     for i, row in enumerate(rows):
-        course, speed = run_between(row, last)
+        course, speed = runs[i] if runs is not None else run_between(row, last)
         sights.append(Sight(
             ho_deg=float(red.ho_deg[i]), gha_deg=float(red.gha_deg[i]), dec_deg=float(red.dec_deg[i]),
             utc=row.utc, body=row.body, sigma_arcmin=row.sigma_arcmin,

@@ -1,0 +1,270 @@
+"""A passage rebuilt from its log: settings, the DR track, sights, fixes, and where we are.
+
+The log (:mod:`nav.logbook`) stores what was entered; this module reads its *effective* entries
+(strikes and corrections applied) and rebuilds, without touching the disk:
+
+- the settings in force (each ``setting`` entry changes the values it names, in log order);
+- the track: *anchors* where the position is known — a ``dr`` entry with a position, or a stored
+  ``fix`` — and *legs* of course and speed (a ``dr`` entry with a course or a speed changes them
+  from its time on). The DR at any instant is the latest anchor at or before it, sailed along the
+  legs since (rhumb line);
+- the sights, each as a :class:`nav.sightfile.SightRow` with its DR at the sight's time (its own
+  DR where one was entered), its instrument values from the sight entry or the settings in force;
+- the vessel's run between two instants, integrated along the legs only: a fix resets the
+  position of the DR but is not part of the run, so a morning sight advanced to noon moves by
+  what the vessel sailed, not by the correction a fix made in between.
+"""
+
+from __future__ import annotations
+
+import bisect
+from dataclasses import dataclass, replace
+from datetime import datetime, timedelta
+from typing import Sequence
+
+from .errors import NavInputError
+from .sailing import dr_position, rhumb_line
+from .sightfile import SightRow
+from .timekeeping import UTC, parse_utc
+
+DEFAULTS = {"eye_height_m": 0.0, "index_error_arcmin": 0.0, "watch_error_s": 0.0,
+            "zone_description_h": 0.0, "temperature_c": 10.0, "pressure_hpa": 1010.0,
+            "horizon": "sea"}
+
+
+@dataclass(frozen=True)
+class Settings:
+    eye_height_m: float = 0.0
+    index_error_arcmin: float = 0.0
+    watch_error_s: float = 0.0          # fast +
+    zone_description_h: float = 0.0     # UTC = ZT + ZD
+    temperature_c: float = 10.0
+    pressure_hpa: float = 1010.0
+    horizon: str = "sea"
+
+
+@dataclass(frozen=True)
+class Anchor:
+    """A known position of the track: a DR position entered, or a fix stored."""
+
+    utc: datetime
+    lat_deg: float
+    lon_deg: float
+    basis: str              # "dr", "ep", "gps", "visual", "other", "fix", "running fix"
+    entry_id: str
+
+
+@dataclass(frozen=True)
+class Leg:
+    """Course and speed in force from `utc` on."""
+
+    utc: datetime
+    course_deg: float | None
+    speed_kn: float
+    entry_id: str
+
+
+@dataclass(frozen=True)
+class Whereabouts:
+    """Where the vessel is at `utc`, and on what basis."""
+
+    utc: datetime
+    lat_deg: float
+    lon_deg: float
+    basis: str                  # the anchor's basis
+    anchor: Anchor
+    course_deg: float | None
+    speed_kn: float
+
+    @property
+    def age(self) -> timedelta:
+        return self.utc - self.anchor.utc
+
+    def describe(self) -> str:
+        hours = self.age.total_seconds() / 3600.0
+        if self.basis in ("fix", "running fix"):
+            what = f"{self.basis} at {self.anchor.utc:%Y-%m-%d %H:%M} UTC"
+        else:
+            what = f"{self.basis.upper()} position entered at {self.anchor.utc:%Y-%m-%d %H:%M} UTC"
+        if hours < 1 / 60:
+            return what
+        return f"DR {hours:.1f} h from the {what}"
+
+
+def _utc(entry, field="utc") -> datetime:
+    return parse_utc(entry[field], field)
+
+
+class Passage:
+    """The effective content of a loaded passage log (any :class:`nav.logbook.LoadedLog`)."""
+
+    def __init__(self, log):
+        self.log = log
+        self.header = log.header
+        entries = log.effective_entries()
+        self.settings = self._settings(entries)
+        self.anchors: list[Anchor] = []
+        self.legs: list[Leg] = []
+        self.fix_entries = [e for e in entries if e.kind == "fix"]
+        self.sight_entries = [e for e in entries if e.kind == "sight"]
+        self.note_entries = [e for e in entries if e.kind == "note"]
+        self._settings_before: dict[str, Settings] = {}
+        running = dict(DEFAULTS)
+        for e in entries:
+            if e.kind == "setting":
+                running.update({k: e[k] for k in DEFAULTS if k in e.data})
+            elif e.kind == "sight":
+                self._settings_before[e.id] = Settings(**running)
+            elif e.kind == "dr":
+                t = _utc(e)
+                if "lat_deg" in e.data:
+                    self.anchors.append(Anchor(t, e["lat_deg"], e["lon_deg"],
+                                               e.get("position_basis", "dr"), e.id))
+                if "course_deg" in e.data or "speed_kn" in e.data:
+                    prev = self.leg_at(t)
+                    self.legs.append(Leg(t, e.get("course_deg", prev.course_deg if prev else None),
+                                         float(e.get("speed_kn", prev.speed_kn if prev else 0.0)),
+                                         e.id))
+                    self.legs.sort(key=lambda leg: leg.utc)
+            elif e.kind == "fix":
+                self.anchors.append(Anchor(_utc(e), e["lat_deg"], e["lon_deg"],
+                                           e["fix_kind"].replace("_", " "), e.id))
+        self.anchors.sort(key=lambda a: a.utc)
+        self._anchor_times = [a.utc for a in self.anchors]
+
+    @staticmethod
+    def _settings(entries) -> Settings:
+        values = dict(DEFAULTS)
+        for e in entries:
+            if e.kind == "setting":
+                values.update({k: e[k] for k in DEFAULTS if k in e.data})
+        return Settings(**values)
+
+    # ------------------------------------------------------------ the track
+
+    def leg_at(self, utc: datetime) -> Leg | None:
+        times = [leg.utc for leg in self.legs]
+        i = bisect.bisect_right(times, utc) - 1
+        return self.legs[i] if i >= 0 else None
+
+    def _sail(self, lat: float, lon: float, t_from: datetime, t_to: datetime) -> tuple[float, float]:
+        """Sail from (lat, lon) at t_from to t_to (t_to ≥ t_from) along the legs in force."""
+        cuts = [t_from] + [leg.utc for leg in self.legs if t_from < leg.utc < t_to] + [t_to]
+        for start, end in zip(cuts, cuts[1:]):
+            leg = self.leg_at(start)
+            if leg and leg.course_deg is not None and leg.speed_kn > 0 and end > start:
+                hours = (end - start).total_seconds() / 3600.0
+                lat, lon = (float(x) for x in dr_position(lat, lon, leg.course_deg, leg.speed_kn,
+                                                         hours))
+        return lat, lon
+
+    def where(self, utc: datetime) -> Whereabouts:
+        """The DR at `utc` from the latest anchor at or before it."""
+        i = bisect.bisect_right(self._anchor_times, utc) - 1
+        if i < 0:
+            raise NavInputError(
+                f"no position is known at or before {utc:%Y-%m-%d %H:%M:%S} UTC: enter a DR first",
+                field="dr", example="dr 41 12.5 N 032 07.1 W course 245 speed 6.5")
+        a = self.anchors[i]
+        lat, lon = self._sail(a.lat_deg, a.lon_deg, a.utc, utc)
+        leg = self.leg_at(utc)
+        return Whereabouts(utc, lat, lon, a.basis, a,
+                           leg.course_deg if leg else None, leg.speed_kn if leg else 0.0)
+
+    def run(self, t_from: datetime, t_to: datetime, lat: float, lon: float) -> tuple[float | None, float]:
+        """Course and speed made good from t_from to t_to along the legs (no anchor resets)."""
+        if t_to == t_from:
+            return None, 0.0
+        a, b = (t_from, t_to) if t_to > t_from else (t_to, t_from)
+        lat2, lon2 = self._sail(lat, lon, a, b)
+        course, dist = rhumb_line(lat, lon, lat2, lon2)
+        hours = (b - a).total_seconds() / 3600.0
+        if float(dist) < 1e-9:
+            return None, 0.0
+        return float(course), float(dist) / hours
+
+    # ------------------------------------------------------------ sights
+
+    def sight_row(self, entry, number: int | None = None) -> SightRow:
+        """A sight entry as a SightRow, with its DR at the sight's time."""
+        s = self._settings_before.get(entry.id, self.settings)
+        t = _utc(entry)
+        if "dr_lat_deg" in entry.data:
+            lat, lon, given = entry["dr_lat_deg"], entry["dr_lon_deg"], True
+        else:
+            w = self.where(t)
+            lat, lon, given = w.lat_deg, w.lon_deg, False
+        leg = self.leg_at(t)
+
+        def pick(name, default):
+            return entry[name] if name in entry.data else default
+
+        return SightRow(
+            row=number if number is not None else entry.line, utc=t, body=entry["body"],
+            hs_deg=entry["hs_deg"], hs_text=entry["hs"], limb=entry.get("limb"),
+            index_error_arcmin=pick("index_error_arcmin", s.index_error_arcmin),
+            eye_height_m=pick("eye_height_m", s.eye_height_m),
+            temperature_c=pick("temperature_c", s.temperature_c),
+            pressure_hpa=pick("pressure_hpa", s.pressure_hpa),
+            horizon=pick("horizon", s.horizon), dr_lat_deg=lat, dr_lon_deg=lon, dr_given=given,
+            course_deg=leg.course_deg if leg else None, speed_kn=leg.speed_kn if leg else None,
+            sigma_arcmin=pick("sigma_arcmin", 1.0), note=entry.get("note", ""))
+
+    def sights(self) -> list[tuple[object, SightRow]]:
+        """Every effective sight, in time order, with its row."""
+        out = [(e, self.sight_row(e)) for e in self.sight_entries]
+        return sorted(out, key=lambda pair: pair[1].utc)
+
+    def sights_since_last_fix(self) -> list[tuple[object, SightRow]]:
+        used = {sid for e in self.fix_entries for sid in e["sight_ids"]}
+        return [(e, r) for e, r in self.sights() if e.id not in used]
+
+    def fix_from(self, sight_ids: Sequence[str], *, confidence: float = 0.95):
+        """Fix or running fix from the named sights (advanced along the legs to the last one)."""
+        from .workflow import fix_from_rows
+
+        chosen = []
+        by_id = {e.id: (e, r) for e, r in self.sights()}
+        for sid in sight_ids:
+            if sid not in by_id:
+                raise NavInputError(f"no sight {sid} in this passage (struck, or not a sight)",
+                                    field="sights", example="e0004 e0005 e0007")
+            chosen.append(by_id[sid])
+        if len(chosen) < 2:
+            raise NavInputError("a fix needs two or more sights", field="sights",
+                                example="e0004 e0005")
+        chosen.sort(key=lambda pair: pair[1].utc)
+        rows = [r for _, r in chosen]
+        last = rows[-1]
+        runs = [self.run(r.utc, last.utc, r.dr_lat_deg, r.dr_lon_deg) for r in rows]
+        result = fix_from_rows(rows, confidence=confidence, runs=runs)
+        return result, [e for e, _ in chosen]
+
+    # ------------------------------------------------------------ for plots and export
+
+    def track_points(self, step: timedelta = timedelta(hours=1)):
+        """The DR track as time-ordered (utc, lat, lon, basis) points: every anchor, plus the DR
+        each `step` between anchors and at every change of leg."""
+        if not self.anchors:
+            return []
+        times = set(self._anchor_times) | {leg.utc for leg in self.legs}
+        t0 = self.anchors[0].utc
+        last = max([self.anchors[-1].utc] + [e_utc for e_utc in
+                                              (_utc(e) for e in self.sight_entries)])
+        t = t0
+        while t < last:
+            times.add(t)
+            t += step
+        times.add(last)
+        out = []
+        for t in sorted(x for x in times if x >= t0):
+            w = self.where(t)
+            out.append((t, w.lat_deg, w.lon_deg, w.basis if w.age == timedelta(0) else "dr"))
+        return out
+
+    def with_settings(self, **changes) -> Settings:
+        return replace(self.settings, **changes)
+
+
+def now_utc() -> datetime:
+    return datetime.now(UTC).replace(microsecond=0)
