@@ -4,8 +4,10 @@
   by path; we do not call ``skyfield_data.get_skyfield_data_path()``, because that also checks the
   expiry date of an Earth-orientation file (``finals2000A.all``) that nav never reads, and would warn
   a user about data we do not use.
-- UT1 and ΔT come from skyfield's built-in time scale (``load.timescale(builtin=True)``): the IERS
-  table that ships inside skyfield, with its long-term ΔT model outside the table. No download.
+- UT1−UTC comes from ``nav/data/ut1_utc.csv``: the IERS Bulletin A table (measured values and
+  about a year of predictions), rebuilt by ``tools/build_ut1_table.py`` from the registry package
+  ``astropy-iers-data`` — newer than the table frozen inside skyfield. Leap seconds follow from its
+  jumps; outside the table skyfield's long-term ΔT model applies. No download, ever.
 - Supported instants: 1900-01-01T00:00Z to 2050-12-31T23:59:59Z, inside DE421's coverage
   (1899-07-29 to 2053-10-09), so that light-time iterations never fall off the file's ends.
 """
@@ -41,12 +43,28 @@ def _de421_path() -> str:
     return path
 
 
+UT1_TABLE = "ut1_utc.csv"
+
+
+def ut1_table() -> tuple[np.ndarray, np.ndarray, str]:
+    """(UTC MJD, UT1−UTC seconds, source line) from the bundled IERS table."""
+    from importlib.resources import files
+
+    text = files("nav.data").joinpath(UT1_TABLE).read_text(encoding="ascii")
+    source = text.split("\n", 1)[0].lstrip("# ")
+    table = np.loadtxt(text.splitlines(), delimiter=",", comments="#", skiprows=3)
+    return table[:, 0], table[:, 1], source
+
+
 @functools.lru_cache(maxsize=None)
 def timescale():
-    """skyfield's built-in time scale (bundled UT1/ΔT), loaded once."""
-    from skyfield.api import load
+    """skyfield time scale on the bundled IERS UT1−UTC table, loaded once."""
+    from skyfield.data.iers import build_timescale_arrays
+    from skyfield.timelib import Timescale
 
-    return load.timescale(builtin=True)
+    mjd, dut1, _ = ut1_table()
+    daily_tt, daily_delta_t, leap_dates, leap_offsets = build_timescale_arrays(mjd, dut1)
+    return Timescale((daily_tt, daily_delta_t), leap_dates, leap_offsets)
 
 
 @functools.lru_cache(maxsize=None)
