@@ -93,9 +93,16 @@ def _split_dm(value_deg: float, decimals: int) -> tuple[int, float]:
     return deg, minutes
 
 
-def format_dm(value_deg: float, *, decimals: int = 1, deg_width: int = 0, signed: bool = False) -> str:
-    """``283°07.9′``; negative values get a minus sign (``−0°03.2′``)."""
+def format_dm(value_deg: float, *, decimals: int = 1, deg_width: int = 0, signed: bool = False,
+              wrap360: bool = False) -> str:
+    """``283°07.9′``; negative values get a minus sign (``−0°03.2′``).
+
+    With `wrap360` (GHA, SHA, LHA: angles in [0, 360)) a value that rounds up to 360° shows as
+    ``000°00.0′``, never ``360°00.0′``.
+    """
     deg, minutes = _split_dm(value_deg, decimals)
+    if wrap360 and deg >= 360:
+        deg -= 360
     neg = float(value_deg) < 0 and (deg or minutes)
     sign = MINUS if neg else ("+" if signed else "")
     mwidth = 3 + decimals if decimals else 2

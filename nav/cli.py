@@ -17,6 +17,8 @@ from .errors import NavError
 COMMAND_MODULES = (
     "nav.commands.almanac_cmd",
     "nav.commands.sights_cmd",
+    "nav.commands.passage_cmd",
+    "nav.commands.shell_cmd",
 )
 
 EXIT_OK, EXIT_INPUT = 0, 2

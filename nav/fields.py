@@ -9,11 +9,12 @@ shell's validator, its completer and the CSV reader all read that table.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from datetime import datetime
 from typing import Callable
 
 from .angles import parse_altitude, parse_height_m, parse_lat, parse_lon, parse_number
 from .errors import NavInputError
-from .timekeeping import parse_utc
+from .timekeeping import parse_utc, to_datetime64
 
 LIMBS = ("lower", "upper", "center")
 _LIMB_WORDS = {"lower": "lower", "low": "lower", "ll": "lower", "l": "lower",
@@ -65,6 +66,15 @@ def check_limb(body: str, limb: str | None, field: str = "limb") -> str | None:
     return limb if body in ("Sun", "Moon") else None
 
 
+def parse_sight_utc(text: str, field: str = "utc") -> datetime:
+    """The instant of a sight: ISO 8601 (:func:`nav.timekeeping.parse_utc`) inside the ephemeris."""
+    from .ephemeris import check_range
+
+    t = parse_utc(text, field)
+    check_range(to_datetime64(t), field)
+    return t
+
+
 def _index_error(text: str, field: str = "index_error") -> float:
     return parse_number(text, field, min_value=-30.0, max_value=30.0,
                         example="-1.5 (arcmin, + when the sextant reads high)")
@@ -104,7 +114,7 @@ class FieldSpec:
 
 
 SIGHT_FIELDS: tuple[FieldSpec, ...] = (
-    FieldSpec("utc", parse_utc, True, None, "2026-03-20T18:42:10Z", "time of the sight, ISO 8601 with zone"),
+    FieldSpec("utc", parse_sight_utc, True, None, "2026-03-20T18:42:10Z", "time of the sight, ISO 8601 with zone"),
     FieldSpec("body", parse_body, True, None, "Sun", "body observed"),
     FieldSpec("limb", parse_limb, False, None, "lower", "lower, upper or center (Sun, Moon)"),
     FieldSpec("hs", parse_altitude, True, None, "34 12.3", "sextant altitude: 34.205, 34 12.3 or 34°12.3'"),

@@ -61,11 +61,11 @@ def reduction_lines(s, *, eye_height_m=None, index_error_arcmin=None, temperatur
         rows.append(("parallax", format_arcmin(_f(s.parallax_arcmin)),
                      f"HP {hp:.1f}\u2032" if math.isfinite(hp) else ""))
     rows.append(("Ho", format_dm(_f(s.ho_deg)), "observed altitude"))
-    rows.append(("GHA", format_dm(_f(s.gha_deg), deg_width=3), ""))
+    rows.append(("GHA", format_dm(_f(s.gha_deg), deg_width=3, wrap360=True), ""))
     rows.append(("Dec", format_lat(_f(s.dec_deg)), ""))
     where = "AP" if s.from_ap else "DR"
     rows.append((where, f"{format_lat(_f(s.lat_deg))}  {format_lon(_f(s.lon_deg))}", ""))
-    rows.append(("LHA", format_dm(_f(s.lha_deg), deg_width=3), f"GHA + lon ({where})"))
+    rows.append(("LHA", format_dm(_f(s.lha_deg), deg_width=3, wrap360=True), f"GHA + lon ({where})"))
     rows.append(("Hc", format_dm(_f(s.hc_deg)), "computed altitude"))
     rows.append(("Zn", f"{_f(s.zn_deg):05.1f}\u00b0", "true azimuth"))
     rows.append(("intercept", intercept_text(s.intercept_nmi), "Ho \u2212 Hc"))
@@ -100,7 +100,7 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
     kind = "Running fix" if fix.kind == "running fix" else "Fix"
     out = [f"{kind} at {fix.utc:%Y-%m-%d %H:%M:%S} UTC from {fix.n_sights} sights",
            f"  position     {format_lat(fix.lat_deg)}  {format_lon(fix.lon_deg)}",
-           f"  ellipse      {e.confidence:.0%}: {e.semi_major_nmi:.1f} \u00d7 {e.semi_minor_nmi:.1f} nmi"
+           f"  ellipse      {e.confidence * 100:g}%: {e.semi_major_nmi:.1f} \u00d7 {e.semi_minor_nmi:.1f} nmi"
            f" (semi-axes), major axis {e.orientation_deg:05.1f}\u00b0/{(e.orientation_deg + 180) % 360:05.1f}\u00b0"
            f", \u03c3 {fix.sigma_source}"]
     if dr_lat_deg is not None:

@@ -64,6 +64,9 @@ def _decode(data: bytes, source: str) -> str:
     if len(data) > MAX_FILE_BYTES:
         raise NavInputError(f"{source} is larger than {MAX_FILE_BYTES // (1024 * 1024)} MB",
                             field="file", example="a CSV file of sights")
+    if data[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        raise NavInputError(f"{source} is UTF-16 text; save it as UTF-8", field="file",
+                            example="a CSV file of sights saved as UTF-8 text")
     if b"\x00" in data:
         raise NavInputError(f"{source} is not a text file (it holds NUL bytes)", field="file",
                             example="a CSV file of sights saved as UTF-8 text")
@@ -74,7 +77,7 @@ def _decode(data: bytes, source: str) -> str:
                             example="a CSV file of sights saved as UTF-8 text") from None
 
 
-def read_sight_file(path: str) -> SightFile:
+def read_sight_file(path: str, *, skip_bad_rows: bool = False) -> SightFile:
     """Read a batch sight file from disk (see :func:`parse_sight_csv`)."""
     try:
         with open(path, "rb") as fh:
@@ -82,7 +85,7 @@ def read_sight_file(path: str) -> SightFile:
     except OSError as err:
         raise NavInputError(f"cannot read {path}: {err.strerror}", field="file",
                             example="sights.csv") from None
-    return parse_sight_csv(_decode(data, path))
+    return parse_sight_csv(_decode(data, path), skip_bad_rows=skip_bad_rows)
 
 
 def _header(names: list[str]) -> list[str | None]:
@@ -193,6 +196,11 @@ def parse_sight_csv(text: str, *, skip_bad_rows: bool = False) -> SightFile:
             continue
         course = v["course_deg"] if v["course_deg"] is not None else (prev.course_deg if prev else None)
         speed = v["speed_kn"] if v["speed_kn"] is not None else (prev.speed_kn if prev else None)
+        if speed and course is None:  # else the DR would silently stay put
+            errors.append(NavInputError("a speed needs a course (in this row or a row above)",
+                                        field="course_deg", row=row_no, example="245"))
+            skipped.append(row_no)
+            continue
         if v["dr_lat"] is not None:
             lat, lon, given = v["dr_lat"], v["dr_lon"], True
         elif prev is None:
@@ -203,8 +211,15 @@ def parse_sight_csv(text: str, *, skip_bad_rows: bool = False) -> SightFile:
         else:
             hours = (v["utc"] - prev.utc).total_seconds() / 3600.0
             if prev.course_deg is not None and prev.speed_kn:
-                lat, lon = dr_position(prev.dr_lat_deg, prev.dr_lon_deg, prev.course_deg,
-                                       prev.speed_kn, hours)
+                try:
+                    lat, lon = dr_position(prev.dr_lat_deg, prev.dr_lon_deg, prev.course_deg,
+                                           prev.speed_kn, hours)
+                except NavInputError as err:  # a run over a pole
+                    errors.append(NavInputError(f"the DR cannot be carried to this row: {err.reason}",
+                                                field="dr_lat", row=row_no,
+                                                example="41 12.5 N, 032 07.1 W"))
+                    skipped.append(row_no)
+                    continue
                 lat, lon = float(lat), float(lon)
             else:
                 lat, lon = prev.dr_lat_deg, prev.dr_lon_deg

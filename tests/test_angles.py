@@ -246,3 +246,13 @@ def test_parse_number():
     with pytest.raises(NavInputError) as info:
         parse_number("x", "speed_kn")
     assert info.value.field == "speed_kn"
+
+
+def test_hour_angles_never_show_360():
+    # GHA, SHA and LHA live in [0, 360) (convention of the trade, common practice, no source):
+    # 359°59.97′ rounds to the next whole degree, which is 000°00.0′, not 360°00.0′.
+    from nav.angles import format_dm
+
+    assert format_dm(359.9995, deg_width=3, wrap360=True) == "000\u00b000.0\u2032"
+    assert format_dm(359.9995, deg_width=3) == "360\u00b000.0\u2032"
+    assert format_dm(359.99, deg_width=3, wrap360=True) == "359\u00b059.4\u2032"

@@ -81,7 +81,7 @@ def run(args) -> int:
     al = _almanac()
     from ..ephemeris import check_range
 
-    check_range(t64, "utc" if single else "from")
+    check_range(t64, "utc" if single else ("from" if t64[0] < np.datetime64("1900-01-01") else "to"))
     results = al.almanac(bodies, t64)
     out = sys.stdout
     if args.json:
@@ -143,8 +143,8 @@ def _fmt_mag(rec, i):
 
 
 def _body_cells(rec, i) -> str:
-    sha = format_dm(float(rec.sha_deg[i]), deg_width=3) if rec.kind == "star" else " " * 9
-    return (f"{rec.body:<16}{format_dm(float(rec.gha_deg[i]), deg_width=3)}  "
+    sha = format_dm(float(rec.sha_deg[i]), deg_width=3, wrap360=True) if rec.kind == "star" else " " * 9
+    return (f"{rec.body:<16}{format_dm(float(rec.gha_deg[i]), deg_width=3, wrap360=True)}  "
             f"{format_lat(float(rec.dec_deg[i])):>11}  {sha}  {_fmt_hp(rec, i)}  {_fmt_sd(rec, i)}  "
             f"{_fmt_mag(rec, i)}")
 
@@ -155,7 +155,7 @@ HEADER = f"{'body':<16}{'GHA':<9}  {'Dec':>11}  {'SHA':<9}  {'HP':>6}  {'SD':>6}
 def _write_single(out, results, t) -> None:
     utc = _utc_strings(np.array([t]))[0]
     out.write(f"Almanac for {utc[:10]} {utc[11:19]} UTC    "
-              f"GHA Aries {format_dm(float(results[0].gha_aries_deg[0]), deg_width=3)}\n\n")
+              f"GHA Aries {format_dm(float(results[0].gha_aries_deg[0]), deg_width=3, wrap360=True)}\n\n")
     out.write(HEADER.rstrip() + "\n")
     for rec in results:
         out.write(_body_cells(rec, 0).rstrip() + "\n")
@@ -166,7 +166,7 @@ def _write_table(out, results, t64) -> None:
     utcs = _utc_strings(t64)
     out.write(f"{'UTC':<21}{'GHA Aries':<11}" + HEADER.rstrip() + "\n")
     for i, utc in enumerate(utcs):
-        aries = format_dm(float(results[0].gha_aries_deg[i]), deg_width=3)
+        aries = format_dm(float(results[0].gha_aries_deg[i]), deg_width=3, wrap360=True)
         for rec in results:
             out.write(f"{utc:<21}{aries:<11}" + _body_cells(rec, i).rstrip() + "\n")
     out.write(f"\nApparent geocentric, true equator and equinox of date (DE421). {CAUTION}\n")

@@ -43,7 +43,7 @@ class _Reported(NavInputError):
 def _load(args):
     from ..sightfile import read_sight_file
 
-    sf = read_sight_file(args.file)
+    sf = read_sight_file(args.file, skip_bad_rows=args.skip_bad_rows)
     for err in sf.errors:
         print(f"nav {args.command}: {args.file}: {err}", file=sys.stderr)
     if sf.errors and not args.skip_bad_rows:
@@ -57,6 +57,29 @@ def _load(args):
     return sf.rows
 
 
+def _reduce(args, rows, use_ap=False):
+    """Reduce the rows; a sight the chain refuses is reported (all of them) like a bad cell."""
+    from ..workflow import reduce_rows, refused_rows
+
+    try:
+        return rows, reduce_rows(rows, use_ap=use_ap)
+    except NavInputError:
+        errors = refused_rows(rows, use_ap=use_ap)
+        if not errors:
+            raise
+    for err in errors:
+        print(f"nav {args.command}: {args.file}: {err}", file=sys.stderr)
+    if not args.skip_bad_rows:
+        raise _Reported(f"{len(errors)} problem(s) in {args.file}; nothing was computed "
+                        "(mend them, or use --skip-bad-rows)", field="file")
+    bad = {err.row for err in errors}
+    print(f"nav {args.command}: skipped row(s) {', '.join(map(str, sorted(bad)))}", file=sys.stderr)
+    rows = tuple(r for r in rows if r.row not in bad)
+    if not rows:
+        raise NavInputError("no valid sight left", field="file", example="utc,body,hs,dr_lat,dr_lon")
+    return rows, reduce_rows(rows, use_ap=use_ap)
+
+
 def _setting_notes(row) -> dict:
     return {"eye_height_m": row.eye_height_m, "index_error_arcmin": row.index_error_arcmin,
             "temperature_c": row.temperature_c, "pressure_hpa": row.pressure_hpa}
@@ -64,10 +87,7 @@ def _setting_notes(row) -> dict:
 
 def run_reduce(args) -> int:
     from ..render import reduction_dict, reduction_lines, sight_title
-    from ..workflow import reduce_rows
-
-    rows = _load(args)
-    red = reduce_rows(rows, use_ap=args.ap)
+    rows, red = _reduce(args, _load(args), use_ap=args.ap)
     if args.json:
         out = []
         for i, row in enumerate(rows):
@@ -95,11 +115,11 @@ def run_fix(args) -> int:
     if not (0.0 < args.confidence < 1.0):
         raise NavInputError("--confidence must be between 0 and 1", field="confidence",
                             example="0.95")
-    rows = _load(args)
+    rows, red = _reduce(args, _load(args))
     if len(rows) < 2:
         raise NavInputError("a fix needs at least two sights", field="file",
                             example="two or more rows of sights")
-    result = fix_from_rows(rows, confidence=args.confidence)
+    result = fix_from_rows(rows, confidence=args.confidence, reductions=red)
     fix = result.fix
     if args.plot:
         from ..plotting import plot_fix_sheet
