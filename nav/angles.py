@@ -93,6 +93,11 @@ def _split_dm(value_deg: float, decimals: int) -> tuple[int, float]:
     return deg, minutes
 
 
+def _min_width(decimals: int) -> int:
+    """Width of the minutes field: ``07.9`` (4) with one decimal, ``07`` (2) with none."""
+    return 3 + decimals if decimals else 2
+
+
 def format_dm(value_deg: float, *, decimals: int = 1, deg_width: int = 0, signed: bool = False,
               wrap360: bool = False) -> str:
     """``283°07.9′``; negative values get a minus sign (``−0°03.2′``).
@@ -105,21 +110,20 @@ def format_dm(value_deg: float, *, decimals: int = 1, deg_width: int = 0, signed
         deg -= 360
     neg = float(value_deg) < 0 and (deg or minutes)
     sign = MINUS if neg else ("+" if signed else "")
-    mwidth = 3 + decimals if decimals else 2
-    return f"{sign}{deg:0{deg_width}d}{DEG}{minutes:0{mwidth}.{decimals}f}{MIN}"
+    return f"{sign}{deg:0{deg_width}d}{DEG}{minutes:0{_min_width(decimals)}.{decimals}f}{MIN}"
 
 
 def format_lat(lat_deg: float, decimals: int = 1) -> str:
     deg, minutes = _split_dm(lat_deg, decimals)
     hemi = "S" if float(lat_deg) < 0 and (deg or minutes) else "N"
-    return f"{deg:02d}{DEG}{minutes:0{3 + decimals}.{decimals}f}{MIN} {hemi}"
+    return f"{deg:02d}{DEG}{minutes:0{_min_width(decimals)}.{decimals}f}{MIN} {hemi}"
 
 
 def format_lon(lon_deg: float, decimals: int = 1) -> str:
     lon = float(norm180(lon_deg)) if abs(float(lon_deg)) > 180 else float(lon_deg)
     deg, minutes = _split_dm(lon, decimals)
     hemi = "W" if lon < 0 and (deg or minutes) else "E"
-    return f"{deg:03d}{DEG}{minutes:0{3 + decimals}.{decimals}f}{MIN} {hemi}"
+    return f"{deg:03d}{DEG}{minutes:0{_min_width(decimals)}.{decimals}f}{MIN} {hemi}"
 
 
 def format_arcmin(value_arcmin: float, decimals: int = 1) -> str:

@@ -76,6 +76,12 @@ def format_hms(t: datetime) -> str:
     return t.strftime("%H:%M:%S") + " UTC"
 
 
+def format_hm(t: datetime) -> str:
+    """Time of day to the minute (rounded), for labels: ``18:42``."""
+    t = t.astimezone(UTC) + timedelta(seconds=30)
+    return t.strftime("%H:%M")
+
+
 _DURATION_RE = re.compile(r"^\s*(?P<v>\d+(?:\.\d*)?)\s*(?P<u>s|sec|m|min|h|hr|d|day|days)?\s*$", re.I)
 _UNIT_S = {"s": 1, "sec": 1, "m": 60, "min": 60, "h": 3600, "hr": 3600, "d": 86400, "day": 86400,
            "days": 86400}

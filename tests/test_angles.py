@@ -256,3 +256,12 @@ def test_hour_angles_never_show_360():
     assert format_dm(359.9995, deg_width=3, wrap360=True) == "000\u00b000.0\u2032"
     assert format_dm(359.9995, deg_width=3) == "360\u00b000.0\u2032"
     assert format_dm(359.99, deg_width=3, wrap360=True) == "359\u00b059.4\u2032"
+
+
+def test_whole_minute_notation():
+    # Graticule labels in whole minutes: two-digit minutes (navigator notation, common practice).
+    from nav.angles import format_lat, format_lon
+
+    assert format_lat(38.0, 0) == "38\u00b000\u2032 N"
+    assert format_lon(-32.5, 0) == "032\u00b030\u2032 W"
+    assert format_lat(-12.9999, 0) == "13\u00b000\u2032 S"
