@@ -1,4 +1,4 @@
-"""Plotting sheets and passage plots (nav/plotting.py).
+"""Plotting sheets and passage plots (nav/plotting.py, its layout in nav/plot_layout.py).
 
 References:
 - geographiclib (PyPI 2.x) ``Geodesic`` on the navigator's sphere (R = 10800/π nmi, f = 0): the
@@ -164,10 +164,12 @@ def by_gid(fig, gid):
 
 # ---------------------------------------------------------------- start-up stays light
 
-def test_core_and_plotting_imports_do_not_import_matplotlib():
+@pytest.mark.parametrize("plot_module", ["nav.plot_layout", "nav.plotting"])
+def test_core_and_plotting_imports_do_not_import_matplotlib(plot_module):
+    # each plotting module on its own, in a fresh interpreter (nav.plotting imports the layout)
     code = ("import sys\nimport nav.fix, nav.almanac, nav.reduction\n"
             "core = sorted(m for m in sys.modules if m.split('.')[0] == 'matplotlib')\n"
-            "import nav.plotting\n"
+            f"import {plot_module}\n"
             "lazy = sorted(m for m in sys.modules if m.split('.')[0] == 'matplotlib')\n"
             "print('MPL', core, lazy)\n")
     proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
@@ -183,7 +185,7 @@ def test_core_and_plotting_imports_do_not_import_matplotlib():
        st.integers(-3, 3))
 def test_graticule_labels_round_trip_through_the_parsers(lat_arcmin, lon_arcmin, turns):
     # format ↔ parse round trip (navigator notation, common practice): whole minutes, any turn
-    from nav.plotting import lat_tick_label, lon_tick_label
+    from nav.plot_layout import lat_tick_label, lon_tick_label
 
     lat_text = lat_tick_label(lat_arcmin * ARCMIN)
     assert abs(parse_lat(lat_text) - lat_arcmin * ARCMIN) < EXACT
@@ -197,7 +199,7 @@ def test_graticule_labels_round_trip_through_the_parsers(lat_arcmin, lon_arcmin,
 @settings(max_examples=200, deadline=None)
 @given(st.floats(1.0, 5000.0))
 def test_scale_bar_length_is_a_round_number_within_the_sheet(span_nmi):
-    from nav.plotting import nice_scale_nmi
+    from nav.plot_layout import nice_scale_nmi
 
     n = nice_scale_nmi(span_nmi)
     assert n in (1, 2, 5, 10, 20, 50, 100, 200, 500, 1000)          # round numbers (brief)
