@@ -268,3 +268,52 @@ class Passage:
 
 def now_utc() -> datetime:
     return datetime.now(UTC).replace(microsecond=0)
+
+
+# ---------------------------------------------------------------- the passage as it stood
+# (added for the demo's replay and the generator: small and separate from the above)
+
+class _LogBefore:
+    """A read-only view of a loaded log holding only the effective entries logged before one
+    entry (by id order), so that a Passage can be rebuilt as the navigator had it then."""
+
+    def __init__(self, log, entry_id: str):
+        self.header = log.header
+        self._log, self._limit = log, int(entry_id[1:])
+
+    def effective_entries(self, kind: str | None = None):
+        return [e for e in self._log.effective_entries(kind) if int(e.id[1:]) < self._limit]
+
+    def entry_by_id(self, eid: str):
+        e = self._log.entry_by_id(eid)
+        return e if e is not None and int(eid[1:]) < self._limit else None
+
+
+def passage_before(passage: Passage, entry_id: str) -> Passage:
+    """The passage as it stood just before `entry_id` was logged: its DR knows only the anchors,
+    legs and settings logged earlier. Replaying a stored fix with it reproduces the fix as it was
+    computed (the fix's own anchor is not yet there to reset the DR of its sights). The view is
+    the effective one: a strike or correction logged later is applied to the earlier entries."""
+    if passage.log.entry_by_id(entry_id) is None:
+        raise NavInputError(f"no entry {entry_id} in this log", field="id", example="e0012")
+    return Passage(_LogBefore(passage.log, entry_id))
+
+
+class _EntriesView:
+    """Some of the effective entries of a log, for a Passage rebuilt from them."""
+
+    def __init__(self, log, keep):
+        self.header = log.header
+        self._entries = [e for e in log.effective_entries() if keep(e)]
+
+    def effective_entries(self, kind: str | None = None):
+        return [e for e in self._entries if kind is None or e.kind == kind]
+
+
+def passage_for_sight(log, sight_id: str) -> Passage:
+    """The passage without the fixes that used `sight_id`: a sight is reduced from the DR at its
+    time, never from a fix it went into."""
+    def keep(e):
+        return not (e.kind == "fix" and sight_id in e["sight_ids"])
+
+    return Passage(_EntriesView(log, keep))

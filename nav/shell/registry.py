@@ -1,0 +1,165 @@
+"""The one registry of shell commands: help, completion and dispatch all read it.
+
+Each :class:`Command` names its syntax, a summary, its parser (:mod:`nav.shell.parse`), its
+handler (:mod:`nav.shell.handlers` or :mod:`nav.shell.records`), its option words and what its
+first words are (for completion), with examples that the tests run.
+"""
+
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass
+from typing import Callable
+
+from ..errors import NavInputError
+from . import handlers, records
+from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
+                    parse_fix, parse_import, parse_log, parse_note, parse_plain, parse_plot,
+                    parse_set, parse_show, parse_sight, parse_speed, parse_strike, parse_where)
+from .words import CORRECTABLE, DR_WORDS, SETTING_WORDS, SIGHT_WORDS, tokenize
+
+
+@dataclass(frozen=True)
+class Command:
+    name: str
+    syntax: str
+    summary: str
+    parse: Callable
+    run: Callable
+    words: tuple[str, ...] = ()        # option words, each followed by a value
+    first: str | None = None           # completion kind of the positional words
+    details: tuple[str, ...] = ()
+    examples: tuple[str, ...] = ()
+    aliases: tuple[str, ...] = ()
+
+
+TIME = "at TIME | zt TIME"
+COMMANDS_LIST = (
+    Command("set", "set [eye H] [ie X] [watch W] [zone ZD] [temp T] [pressure P] [horizon KIND]",
+            "set the vessel's state (several at once); `set` alone shows it",
+            parse_set, handlers.run_set, SETTING_WORDS, None,
+            ("eye: height of eye, metres or feet (2.5, 2.5 m, 8 ft)",
+             "ie: index error in arcmin, + when the sextant reads high (on the arc): its "
+             "correction is then negative",
+             "watch: watch error, '12 fast' or '3 slow' (a fast watch is subtracted)",
+             "zone: zone description, the trade's rule UTC = ZT + ZD (west longitude +)",
+             "temp (°C) and pressure (hPa): for refraction; horizon: sea, artificial or bubble",
+             "each `set` line is one setting entry in the log"),
+            ("set eye 2.5 ie 1.2", "set watch 12 fast zone +3", "set horizon sea temp 15")),
+    Command("dr", f"dr LAT LON [course C] [speed S] [{TIME}] [basis B] [note TEXT]",
+            "enter a DR position (and the course and speed from then on)",
+            parse_dr, handlers.run_dr, DR_WORDS, "position",
+            ("LAT LON: 41 12.5 N 032 07.1 W, 41°12.5′N 32°07.1′W, or 41.2083 -32.118",
+             "without a time the DR is for now (UTC), and the shell says so",
+             "basis: dr (default), ep, gps, visual or other"),
+            ("dr 41 12.5 N 032 07.1 W course 245 speed 6.5 at 18:00",)),
+    Command("course", f"course C [speed S] [{TIME}] [note TEXT]",
+            "change course (and speed) from a time on", parse_course, handlers.run_dr,
+            ("speed", "at", "zt", "note"), "number", (), ("course 260 speed 7 at 21:30",)),
+    Command("speed", f"speed S [course C] [{TIME}] [note TEXT]",
+            "change speed (and course) from a time on", parse_speed, handlers.run_dr,
+            ("course", "at", "zt", "note"), "number", (), ("speed 5.5 at 22:00",)),
+    Command("sight", f"sight BODY HS [limb L] ({TIME}) [ie X] [eye H] [temp T] [pressure P] "
+                     "[horizon KIND] [sigma S] [note TEXT]",
+            "log a sight and show its reduction; `sight` alone asks field by field",
+            parse_sight, handlers.run_sight, SIGHT_WORDS, "body",
+            ("HS: 34 12.3, 34°12.3′ or 34.205; limb: lower (default for Sun and Moon), upper, "
+             "center",
+             "a sight needs its time (see `help time`); ie, eye ... override the settings for "
+             "this sight only",
+             "the reduction is worked from the DR at the sight's time"),
+            ("sight Vega 34 12.3 at 22:55:00", "sight Sun 52 08.4 limb upper zt 11:42:05",
+             "sight Rigil Kentaurus 18 44.0 at 2026-06-14T22:58:30Z note low, hazy")),
+    Command("fix", "fix [SIGHT-ID ...]",
+            "fix or running fix from sights (default: those not used by a fix yet)",
+            parse_fix, handlers.run_fix, (), "sight",
+            ("earlier sights are advanced along the DR track to the time of the last one",
+             "the fix is logged with its sights, error ellipse and warnings"),
+            ("fix", "fix e0004 e0005 e0007")),
+    Command("where", f"where [{TIME}]", "where the vessel is, and on what basis",
+            parse_where, handlers.run_where, ("at", "zt"), None, (), ("where", "where at 23:30")),
+    Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
+            parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
+            ("almanac Sun at 12:00:00",)),
+    Command("log", "log [N | all]", "list the latest N entries (default 20), or all",
+            parse_log, records.run_log, (), "count", (), ("log", "log all")),
+    Command("show", "show ID", "one entry in full (a sight with its reduction, its history)",
+            parse_show, records.run_show, (), "entry", (), ("show e0004",)),
+    Command("strike", "strike ID REASON", "strike an entry out (it stays in the log, marked)",
+            parse_strike, records.run_strike, (), "entry", (),
+            ("strike e0005 misread the drum",)),
+    Command("correct", "correct ID FIELD VALUE [FIELD VALUE ...] -- REASON",
+            "correct fields of a sight, DR, setting or note (re-parsed, logged as a correction)",
+            parse_correct, records.run_correct, (), "entry",
+            tuple(f"fields of a {k}: {', '.join(v)}" for k, v in CORRECTABLE.items()),
+            ("correct e0005 hs 34 21.3 -- misread the drum",
+             "correct e0003 position 41 14.0 N 032 05.0 W -- plotted wrong")),
+    Command("note", "note TEXT", "log a note (time: now)", parse_note, handlers.run_note,
+            (), "text", (), ("note reefed at dusk",)),
+    Command("plot", "plot [fix [ID] | passage] [FILE.png | FILE.pdf]",
+            "draw a fix's plotting sheet (default: the latest fix) or the passage",
+            parse_plot, records.run_plot, (), "plot",
+            ("without a file the plot goes next to the log, as <log>-<fix id>.png or "
+             "<log>-passage.png",), ("plot", "plot fix e0009 sheet.pdf", "plot passage")),
+    Command("export", "export gpx|geojson|csv [FILE]",
+            "export fixes and track (GPX, GeoJSON) or the sights (CSV)",
+            parse_export, records.run_export, (), "format",
+            ("without a file the export goes next to the log; an existing file is never "
+             "overwritten",), ("export gpx", "export csv sights-out.csv")),
+    Command("import", "import FILE.csv",
+            "append the sights and DRs of a batch CSV file (the file of nav reduce / nav fix)",
+            parse_import, records.run_import, (), "csv",
+            ("the whole file is checked first; a file with any bad row is refused, naming the "
+             "rows",), ("import deck-log.csv",)),
+    Command("help", "help [COMMAND | time | position]", "this list, or one command in full",
+            lambda a, line, ctx: Request("help", args={"topic": a[0].text.lower() if a else None}),
+            records.run_help, (), "command", (), ("help", "help sight")),
+    Command("quit", "quit", "leave the shell (also: exit, Ctrl-D)",
+            parse_plain("quit", "quit"), records.run_quit, (), None, (), ("quit",), ("exit",)),
+)
+COMMANDS = {c.name: c for c in COMMANDS_LIST}
+ALIASES = {a: c.name for c in COMMANDS_LIST for a in c.aliases}
+
+TOPICS = {
+    "time": (
+        "TIME, wherever a command takes one:",
+        "  at 2026-06-14T20:55:00Z    ISO 8601 with its zone (Z, or an offset such as -03:00)",
+        "  at 20:55:00                UTC time of day: the date is that of the latest entry with "
+        "a time,",
+        "                             else today's UTC date (the shell says which it used)",
+        "  zt [DATE] HH:MM[:SS]       zone time read on the watch, with the zone and watch error",
+        "                             set by `set zone` and `set watch`:",
+        "                             ZT = watch − watch error (a fast watch is subtracted),",
+        "                             UTC = ZT + ZD (ZD + in west longitude: ZD +3 for 45° W)",
+        "Entries other than sights are for now (UTC) when no time is given; a sight needs its time.",
+    ),
+    "position": (
+        "Positions (LAT LON): latitude first, then longitude, each with its hemisphere:",
+        "  41 12.5 N 032 07.1 W    41°12.5′N 32°07.1′W    N41 12.5 W032 07.1",
+        "  or signed decimal degrees (north +, east +): 41.2083 -32.118",
+        "  a comma may separate them: 41 12.5 N, 032 07.1 W",
+    ),
+}
+
+
+def find_command(word: str) -> Command:
+    key = word.lower()
+    key = ALIASES.get(key, key)
+    if key in COMMANDS:
+        return COMMANDS[key]
+    names = list(COMMANDS) + list(ALIASES)
+    near = difflib.get_close_matches(key, names, n=2, cutoff=0.6)
+    hint = f"; did you mean {' or '.join(near)}?" if near else "; type help for the list"
+    raise NavInputError(f"unknown command '{word[:40]}'{hint}", field="command",
+                        example="sight, fix, where, help")
+
+
+def parse_line(line: str, ctx) -> tuple[Command, Request] | None:
+    """A typed line -> its command and the request it makes (None for a blank line).
+
+    Raises NavInputError (field, example) for a line that is not valid."""
+    tokens = tokenize(line)
+    if not tokens:
+        return None
+    cmd = find_command(tokens[0].text)
+    return cmd, cmd.parse(tokens[1:], line, ctx)
