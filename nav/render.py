@@ -69,7 +69,8 @@ def reduction_lines(s, *, eye_height_m=None, index_error_arcmin=None, temperatur
     rows.append(("Hc", format_dm(_f(s.hc_deg)), "computed altitude"))
     rows.append(("Zn", f"{_f(s.zn_deg):05.1f}\u00b0", "true azimuth"))
     rows.append(("intercept", intercept_text(s.intercept_nmi), "Ho \u2212 Hc"))
-    out = [f"  {k:<13}{v:<26}{note}".rstrip() for k, v, note in rows]
+    width = max(26, max(len(v) for _, v, _ in rows) + 2)
+    out = [f"  {k:<13}{v:<{width}}{note}".rstrip() for k, v, note in rows]
     out += [f"  ! {w}" for w in s.warnings]
     return out
 
@@ -135,6 +136,52 @@ def fix_dict(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> dict:
         "dr_lon_deg": None if dr_lon_deg is None else round(dr_lon_deg, 7),
         "warnings": list(fix.warnings),
     }
+
+
+def _fmt_hp(rec, i):
+    return f"{float(rec.hp_arcmin[i]):5.1f}\u2032" if rec.hp_arcmin is not None else "      "
+
+
+def _fmt_sd(rec, i):
+    return f"{float(rec.sd_arcmin[i]):5.1f}\u2032" if rec.sd_arcmin is not None else "      "
+
+
+def _fmt_mag(rec, i):
+    if rec.magnitude is None:
+        return ""
+    mag = rec.magnitude if np.ndim(rec.magnitude) == 0 else rec.magnitude[i]
+    return f"{float(mag):+5.1f}" if np.isfinite(mag) else ""
+
+
+def almanac_cells(rec, i: int) -> str:
+    """One body's row of the almanac table at instant index `i`."""
+    sha = format_dm(float(rec.sha_deg[i]), deg_width=3, wrap360=True) if rec.kind == "star" else " " * 9
+    return (f"{rec.body:<16}{format_dm(float(rec.gha_deg[i]), deg_width=3, wrap360=True)}  "
+            f"{format_lat(float(rec.dec_deg[i])):>11}  {sha}  {_fmt_hp(rec, i)}  {_fmt_sd(rec, i)}  "
+            f"{_fmt_mag(rec, i)}")
+
+
+ALMANAC_HEADER = f"{'body':<16}{'GHA':<9}  {'Dec':>11}  {'SHA':<9}  {'HP':>6}  {'SD':>6}  mag"
+
+
+ALMANAC_NOTE = "Apparent geocentric, true equator and equinox of date (DE421)."
+
+
+def utc_strings(t64: np.ndarray) -> list[str]:
+    """``datetime64`` (UTC) -> ISO 8601 to the second (rounded), with ``Z``."""
+    rounded = (t64 + np.timedelta64(500_000, "us")).astype("datetime64[s]")
+    return [s + "Z" for s in np.datetime_as_string(rounded, unit="s")]
+
+
+def almanac_lines(results, t) -> list[str]:
+    """The almanac of `results` (nav.almanac.almanac over one instant `t`, a datetime64)."""
+    utc = utc_strings(np.array([t]))[0]
+    aries = format_dm(float(results[0].gha_aries_deg[0]), deg_width=3, wrap360=True)
+    out = [f"Almanac for {utc[:10]} {utc[11:19]} UTC    GHA Aries {aries}", "",
+           ALMANAC_HEADER.rstrip()]
+    out += [almanac_cells(rec, 0).rstrip() for rec in results]
+    out += ["", f"{ALMANAC_NOTE} {CAUTION}"]
+    return out
 
 
 def caution_line() -> str:

@@ -494,8 +494,13 @@ def test_time_of_day_takes_the_date_of_the_latest_entry(state):
     out = run_lines(state, "note before any time")            # a note is for now (the clock)
     assert "now: no time was given" in out
     out = run_lines(state, DR_LINE, "sight Vega 34 12.3 at 22:55")
-    assert "UTC 2026-06-14 22:55:00 (date 2026-06-14: of the latest entry with a time, e0003)" \
+    assert "UTC 2026-06-14 22:55:00 (date 2026-06-14: nearest the latest entry with a time, e0003)" \
         in out
+    # Across midnight a time of day belongs to the date nearest the latest entry (a watch kept
+    # through the night; common practice, no source): 00:03 after 23:58 is the next day.
+    run_lines(state, "sight Vega 34 12.3 at 23:58")
+    out = run_lines(state, "sight Vega 34 12.3 at 00:03")
+    assert "UTC 2026-06-15 00:03:00 (date 2026-06-15" in out
     out = run_lines(state, "sight Vega 34 12.3 at 25:00")
     assert "error: field 'at': '25:00' is not a real time of day" in out
     out = run_lines(state, "sight Vega 34 12.3 at 2150-01-01T00:00:00Z")

@@ -8,8 +8,9 @@ import sys
 import numpy as np
 
 from .. import CAUTION
-from ..angles import format_dm, format_lat
+from ..angles import format_dm
 from ..errors import NavInputError
+from ..render import ALMANAC_HEADER, ALMANAC_NOTE, almanac_cells, almanac_lines, utc_strings
 from ..timekeeping import ISO_EXAMPLE, parse_duration, parse_utc, time_range
 
 MAX_ROWS = 2_000_000
@@ -93,11 +94,6 @@ def run(args) -> int:
     return 0
 
 
-def _utc_strings(t64: np.ndarray) -> list[str]:
-    rounded = (t64 + np.timedelta64(500_000, "us")).astype("datetime64[s]")
-    return [s + "Z" for s in np.datetime_as_string(rounded, unit="s")]
-
-
 def _row_dict(rec, i: int, utc: str) -> dict:
     d = {"body": rec.body, "utc": utc, "gha_deg": round(float(rec.gha_deg[i]), 7),
          "dec_deg": round(float(rec.dec_deg[i]), 7)}
@@ -117,7 +113,7 @@ def _row_dict(rec, i: int, utc: str) -> dict:
 
 
 def _write_json(out, results, t64) -> None:
-    utcs = _utc_strings(t64)
+    utcs = utc_strings(t64)
     out.write("[")
     first = True
     for i, utc in enumerate(utcs):
@@ -127,48 +123,17 @@ def _write_json(out, results, t64) -> None:
     out.write("\n]\n")
 
 
-def _fmt_hp(rec, i):
-    return f"{float(rec.hp_arcmin[i]):5.1f}\u2032" if rec.hp_arcmin is not None else "      "
-
-
-def _fmt_sd(rec, i):
-    return f"{float(rec.sd_arcmin[i]):5.1f}\u2032" if rec.sd_arcmin is not None else "      "
-
-
-def _fmt_mag(rec, i):
-    if rec.magnitude is None:
-        return ""
-    mag = rec.magnitude if np.ndim(rec.magnitude) == 0 else rec.magnitude[i]
-    return f"{float(mag):+5.1f}" if np.isfinite(mag) else ""
-
-
-def _body_cells(rec, i) -> str:
-    sha = format_dm(float(rec.sha_deg[i]), deg_width=3, wrap360=True) if rec.kind == "star" else " " * 9
-    return (f"{rec.body:<16}{format_dm(float(rec.gha_deg[i]), deg_width=3, wrap360=True)}  "
-            f"{format_lat(float(rec.dec_deg[i])):>11}  {sha}  {_fmt_hp(rec, i)}  {_fmt_sd(rec, i)}  "
-            f"{_fmt_mag(rec, i)}")
-
-
-HEADER = f"{'body':<16}{'GHA':<9}  {'Dec':>11}  {'SHA':<9}  {'HP':>6}  {'SD':>6}  mag"
-
-
 def _write_single(out, results, t) -> None:
-    utc = _utc_strings(np.array([t]))[0]
-    out.write(f"Almanac for {utc[:10]} {utc[11:19]} UTC    "
-              f"GHA Aries {format_dm(float(results[0].gha_aries_deg[0]), deg_width=3, wrap360=True)}\n\n")
-    out.write(HEADER.rstrip() + "\n")
-    for rec in results:
-        out.write(_body_cells(rec, 0).rstrip() + "\n")
-    out.write(f"\nApparent geocentric, true equator and equinox of date (DE421). {CAUTION}\n")
+    out.write("\n".join(almanac_lines(results, t)) + "\n")
 
 
 def _write_table(out, results, t64) -> None:
-    utcs = _utc_strings(t64)
-    out.write(f"{'UTC':<21}{'GHA Aries':<11}" + HEADER.rstrip() + "\n")
+    utcs = utc_strings(t64)
+    out.write(f"{'UTC':<21}{'GHA Aries':<11}" + ALMANAC_HEADER.rstrip() + "\n")
     for i, utc in enumerate(utcs):
         aries = format_dm(float(results[0].gha_aries_deg[i]), deg_width=3, wrap360=True)
         for rec in results:
-            out.write(f"{utc:<21}{aries:<11}" + _body_cells(rec, i).rstrip() + "\n")
-    out.write(f"\nApparent geocentric, true equator and equinox of date (DE421). {CAUTION}\n")
+            out.write(f"{utc:<21}{aries:<11}" + almanac_cells(rec, i).rstrip() + "\n")
+    out.write(f"\n{ALMANAC_NOTE} {CAUTION}\n")
 
 

@@ -6,7 +6,6 @@ refuses is never logged), appends to the log, and only then confirms and shows t
 
 from __future__ import annotations
 
-import io
 import textwrap
 from types import MappingProxyType
 
@@ -319,13 +318,12 @@ def run_almanac(st, req) -> None:
     import numpy as np
 
     from .. import almanac as al
-    from ..commands.almanac_cmd import _write_single
+    from ..render import almanac_lines
     from ..timekeeping import to_datetime64
 
     t64 = np.array([to_datetime64(req.time.utc)])
-    buf = io.StringIO()
-    _write_single(buf, al.almanac([req.args["body"]], t64), t64[0])
-    st.say(f"time: {req.time.explain}", *buf.getvalue().rstrip("\n").split("\n"))
+    lines = almanac_lines(al.almanac([req.args["body"]], t64), t64[0])
+    st.say(f"time: {req.time.explain}", *lines)
 
 
 def run_note(st, req) -> None:

@@ -66,13 +66,22 @@ def zone_text(hours: float) -> str:
     return f"{hours:+g} h" if hours else "0 (UTC)"
 
 
-def _default_date(ctx, zone_h: float = 0.0) -> tuple[date, str]:
-    """The date for a time of day: that of the latest entry with a time, else today's (UTC, or
+def _default_date(ctx, zone_h: float = 0.0, hms: str | None = None) -> tuple[date, str]:
+    """The date for a time of day: the one that puts it nearest the latest entry with a time
+    (so 00:03 typed after a sight at 23:58 falls on the next day), else today's (UTC, or the
     zone date for a zone time)."""
     ref, eid = ctx.reference()
     shift = timedelta(hours=zone_h)
     if ref is not None:
-        return (ref - shift).date(), f"of the latest entry with a time, {eid}"
+        local_ref = (ref - shift).replace(tzinfo=None)
+        day = local_ref.date()
+        if hms is not None:
+            h, m, sec = (int(x) for x in hms.split(":"))
+            if h < 24 and m < 60 and sec < 60:
+                clock = timedelta(hours=h, minutes=m, seconds=sec)
+                day = min((day + timedelta(days=k) for k in (-1, 0, 1)),
+                          key=lambda d: abs(datetime.combine(d, datetime.min.time()) + clock - local_ref))
+        return day, f"nearest the latest entry with a time, {eid}"
     word = "UTC" if not zone_h else "zone"
     return (ctx.now() - shift).date(), f"today's {word} date; no entry has a time yet"
 
@@ -89,7 +98,7 @@ def parse_at(text: str, ctx, fld: str = "at", *, sight: bool = False) -> TimeRea
         t = check(text, fld)
         note = "" if text.strip().upper().endswith(("Z", "UTC")) else f" (given as {text})"
         return TimeRead(t, "utc", text, f"UTC {t:%Y-%m-%d %H:%M:%S}{note}")
-    day, why = _default_date(ctx)
+    day, why = _default_date(ctx, hms=_time_of_day(m))
     try:
         t = check(f"{day:%Y-%m-%d}T{_time_of_day(m)}Z", fld)
     except OutOfRangeError:
@@ -107,7 +116,7 @@ def parse_zt(text: str, ctx, fld: str = "zt", *, sight: bool = False) -> TimeRea
     m = _TIME_OF_DAY.match(text.strip())
     why = ""
     if m:
-        day, why = _default_date(ctx, zd_h)
+        day, why = _default_date(ctx, zd_h, hms=_time_of_day(m))
         try:
             reading = parse_naive_time(f"{day:%Y-%m-%d} {_time_of_day(m)}", fld)
         except NavInputError:
