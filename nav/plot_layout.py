@@ -36,7 +36,7 @@ SCALE_BAR_NMI = (1, 2, 5, 10, 20, 50, 100, 200, 500, 1000)
 GRID_STEPS_ARCMIN = (1, 2, 5, 10, 15, 20, 30, 60, 120, 180, 300, 600, 900, 1200, 1800)
 LABEL_PT = 8.5
 # Line colours after Okabe & Ito and Tol (colour-blind safe); vermilion is kept for warnings.
-LINE_COLOURS = ("#0072B2", "#009E73", "#CC79A7", "#56B4E9", "#000000", "#999933", "#332288",
+LINE_COLOURS = ("#0072B2", "#009E73", "#CC79A7", "#56B4E9", "#117733", "#999933", "#332288",
                 "#882255", "#44AA99", "#7F7F7F")
 WARN, FIX_C, DR_C, TRACK_C, GREY = "#D55E00", "#000000", "#5A3E2B", "#0072B2", "#333333"
 ELLIPSE_FILL = "#f2c0a5"

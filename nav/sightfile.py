@@ -16,6 +16,8 @@ import csv
 import difflib
 import io
 from dataclasses import dataclass, field, replace
+from types import MappingProxyType
+from typing import Mapping
 from datetime import datetime
 
 from .errors import NavInputError
@@ -51,6 +53,8 @@ class SightRow:
     speed_kn: float | None
     sigma_arcmin: float
     note: str
+    cells: Mapping[str, str] = field(default_factory=dict, compare=False)
+    """The row's non-empty cells as typed, by field name (what a passage log keeps as typed)."""
 
 
 @dataclass(frozen=True)
@@ -131,6 +135,7 @@ def _parse_cells(row_no: int, cells: dict[str, str]) -> tuple[dict, list[NavInpu
         except NavInputError as err:
             errors.append(err.at_row(row_no))
     values["hs_text"] = (cells.get("hs") or "").strip()
+    values["cells"] = MappingProxyType({k: v.strip() for k, v in cells.items() if v and v.strip()})
     if "body" in values and values.get("body") and not any(e.field == "limb" for e in errors):
         try:
             values["limb"] = check_limb(values["body"], values.get("limb"))
@@ -229,7 +234,7 @@ def parse_sight_csv(text: str, *, skip_bad_rows: bool = False) -> SightFile:
             limb=v["limb"], index_error_arcmin=v["index_error"], eye_height_m=v["eye_height_m"],
             temperature_c=v["temperature_c"], pressure_hpa=v["pressure_hpa"], horizon=v["horizon"],
             dr_lat_deg=lat, dr_lon_deg=lon, dr_given=given, course_deg=course, speed_kn=speed,
-            sigma_arcmin=v["sigma_arcmin"], note=v["note"])
+            sigma_arcmin=v["sigma_arcmin"], note=v["note"], cells=v["cells"])
         rows.append(row)
         prev = row
     if errors and not skip_bad_rows:

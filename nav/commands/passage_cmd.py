@@ -15,7 +15,6 @@ from __future__ import annotations
 
 import bisect
 import csv
-import io
 import json
 import os
 import sys
@@ -339,63 +338,6 @@ def run_export(args) -> int:
 
 # ---------------------------------------------------------------- nav import
 
-# batch column -> (raw field, parsed field) of a sight entry, for the instrument values
-_INSTRUMENT_COLUMNS = {"index_error": ("index_error", "index_error_arcmin"),
-                       "eye_height_m": ("eye_height", "eye_height_m"),
-                       "temperature_c": ("temperature", "temperature_c"),
-                       "pressure_hpa": ("pressure", "pressure_hpa")}
-_ROW_VALUE = {"index_error": "index_error_arcmin", "eye_height_m": "eye_height_m",
-              "temperature_c": "temperature_c", "pressure_hpa": "pressure_hpa",
-              "horizon": "horizon"}
-
-
-def _typed_cells(path: str, text: str) -> dict[int, dict[str, str]]:
-    """The cells of each data row as typed (stripped, non-empty), by field name: the values the
-    log keeps beside the parsed ones. Columns are named by the sight file's own header reader."""
-    from ..sightfile import _header
-
-    reader = csv.reader(io.StringIO(text))
-    columns = _header(next(reader))
-    return {n: {c: v.strip() for c, v in zip(columns, cells) if v.strip()}
-            for n, cells in enumerate(reader, start=1)}
-
-
-def entries_from_rows(rows, cells: dict[int, dict[str, str]], source: str) -> list[dict]:
-    """Log entries for validated batch rows: a dr entry where a row gives a DR, a course or a
-    speed; a sight entry per row (time_source utc), every value that was typed kept as typed."""
-    out = []
-    for r in rows:
-        typed = cells[r.row]
-        where = f"{source} row {r.row}"
-        dr: dict = {}
-        if "dr_lat" in typed:
-            dr.update(lat=typed["dr_lat"], lat_deg=r.dr_lat_deg, lon=typed["dr_lon"],
-                      lon_deg=r.dr_lon_deg, position_basis="dr")
-        if "course_deg" in typed:
-            dr.update(course=typed["course_deg"], course_deg=r.course_deg)
-        if "speed_kn" in typed:
-            dr.update(speed=typed["speed_kn"], speed_kn=r.speed_kn)
-        if dr:
-            out.append({"kind": "dr", "utc": r.utc, "time_text": typed["utc"], **dr,
-                        "note": f"from {where}"})
-        sight = {"kind": "sight", "body": r.body, "utc": r.utc, "time_source": "utc",
-                 "time_text": typed["utc"], "hs": typed["hs"], "hs_deg": r.hs_deg}
-        if r.limb is not None:
-            sight["limb"] = r.limb
-        for column, (raw, parsed) in _INSTRUMENT_COLUMNS.items():
-            if column in typed:
-                sight[raw], sight[parsed] = typed[column], getattr(r, parsed)
-        if "horizon" in typed:
-            sight["horizon"] = r.horizon
-        if "sigma_arcmin" in typed:
-            sight["sigma_arcmin"] = r.sigma_arcmin
-        sight["source"] = where[:200]
-        if r.note:
-            sight["note"] = r.note
-        out.append(sight)
-    return out
-
-
 def _refuse(args, errors) -> None:
     for err in errors:
         print(f"nav import: {args.file}: {err}", file=sys.stderr)
@@ -409,6 +351,7 @@ def _refuse(args, errors) -> None:
 def run_import(args) -> int:
     from ..logbook import PassageLog, new_log
     from ..sightfile import read_sight_file
+    from ..importing import entries_from_rows
     from ..workflow import reduce_rows, refused_rows
 
     if args.new and not (args.vessel and args.title):
@@ -433,16 +376,10 @@ def run_import(args) -> int:
         if not errors:
             raise
         _refuse(args, errors)
-    with open(args.file, "rb") as f:
-        text = f.read().decode("utf-8-sig")
-    cells = _typed_cells(args.file, text)
-    if any(cells.get(r.row, {}).get("hs") != r.hs_text for r in rows):
-        raise NavInputError(f"{args.file} changed while it was read; nothing was logged",
-                            field="file", example="import it again")
-    entries = entries_from_rows(rows, cells, Path(args.file).name)
+    entries = entries_from_rows(rows, Path(args.file).name)
     log = new_log(args.log, args.vessel, args.title) if args.new else PassageLog.open(args.log)
     try:
-        _append(args, log, rows, cells, entries)
+        _append(args, log, rows, entries)
     except BaseException:
         log.close()
         if args.new:        # nothing but the header we wrote a moment ago
@@ -452,19 +389,13 @@ def run_import(args) -> int:
     return 0
 
 
-def _append(args, log, rows, cells, entries) -> None:
-    from ..fields import SIGHT_FIELD_BY_NAME
+def _append(args, log, rows, entries) -> None:
+    from ..importing import blank_cell_notes
     from ..passage import Passage
 
     if not args.new:   # an empty instrument cell takes the log's setting, not nav fix's default
-        in_force = Passage(log).settings
-        for column, name in _ROW_VALUE.items():
-            blank = sum(column not in cells[r.row] for r in rows)
-            default, value = SIGHT_FIELD_BY_NAME[column].default, getattr(in_force, name)
-            if blank and value != default:
-                print(f"nav import: note: {blank} sight(s) with no {column} take the log's "
-                      f"setting in force, {value} (nav fix on the file would use {default})",
-                      file=sys.stderr)
+        for note in blank_cell_notes(rows, Passage(log).settings):
+            print(f"nav import: note: {note}", file=sys.stderr)
     added = log.append_many(entries)
     sights = sum(e.kind == "sight" for e in added)
     drs = len(added) - sights

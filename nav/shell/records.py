@@ -254,35 +254,6 @@ def _refuse_file(st, path: str, errors) -> None:
                         "; nothing was imported", field="file", example="mend the rows, then import")
 
 
-def import_entries(rows, source: str) -> list[dict]:
-    """The log entries of validated batch rows: a dr entry where a row gives a DR or changes
-    course or speed, and a sight entry per row (its instrument values as the file gives them)."""
-    out, prev = [], None
-    for r in rows:
-        dr = {}
-        if r.dr_given:
-            dr.update(lat=format_lat(r.dr_lat_deg, 4), lat_deg=r.dr_lat_deg,
-                      lon=format_lon(r.dr_lon_deg, 4), lon_deg=r.dr_lon_deg)
-        if r.course_deg is not None and (prev is None or r.course_deg != prev.course_deg):
-            dr.update(course=f"{r.course_deg:g}", course_deg=r.course_deg)
-        if r.speed_kn is not None and (prev is None or r.speed_kn != prev.speed_kn):
-            dr.update(speed=f"{r.speed_kn:g}", speed_kn=r.speed_kn)
-        where = f"{source[:150]} row {r.row}"
-        if dr:
-            out.append({"kind": "dr", "utc": r.utc, "note": f"imported from {where}", **dr})
-        out.append({"kind": "sight", "body": r.body, "utc": r.utc, "time_source": "utc",
-                    "hs": r.hs_text, "hs_deg": r.hs_deg, "limb": r.limb,
-                    "index_error": f"{r.index_error_arcmin:g}",
-                    "index_error_arcmin": r.index_error_arcmin,
-                    "eye_height": f"{r.eye_height_m:g} m", "eye_height_m": r.eye_height_m,
-                    "temperature": f"{r.temperature_c:g}", "temperature_c": r.temperature_c,
-                    "pressure": f"{r.pressure_hpa:g}", "pressure_hpa": r.pressure_hpa,
-                    "horizon": r.horizon, "sigma_arcmin": r.sigma_arcmin,
-                    "note": r.note or None, "source": f"import {where}"})
-        prev = r
-    return out
-
-
 def run_import(st, req) -> None:
     from ..sightfile import read_sight_file
     from ..workflow import reduce_rows, refused_rows
@@ -299,7 +270,11 @@ def run_import(st, req) -> None:
         if errors:
             _refuse_file(st, path, errors)
         raise
-    added = st.append_many(import_entries(rows, Path(path).name))
+    from ..importing import blank_cell_notes, entries_from_rows
+
+    for note in blank_cell_notes(rows, st.passage.settings):
+        st.say(f"  note: {note}")
+    added = st.append_many(entries_from_rows(rows, Path(path).name))
     sights = [e for e in added if e.kind == "sight"]
     st.say(f"imported {len(sights)} sight(s) and {len(added) - len(sights)} DR entr"
            f"{'y' if len(added) - len(sights) == 1 else 'ies'} from {path} "
