@@ -40,6 +40,7 @@ from nav.cli import main
 from nav.sailing import dr_position
 from nav.timekeeping import UTC
 from nav.units import ARCMIN_DEG as ARCMIN
+from reference_sky import star_skycoord
 
 NMI = 1.0                               # *_nmi values are in nautical miles (1′ of great circle)
 FIX_BAR = 0.1 * NMI                     # the issue's bar for a noise-free star/planet fix
@@ -99,7 +100,7 @@ def mercator_sailing(lat_deg, lon_deg, course_deg, dist_nmi):
 def airless_altaz(body: str, when: datetime, lat_deg: float, lon_deg: float):
     """(alt_deg, az_deg, distance_km or None) of the body's centre, topocentric, no refraction."""
     from astropy import units as u
-    from astropy.coordinates import (AltAz, Distance, EarthLocation, SkyCoord, get_body,
+    from astropy.coordinates import (AltAz, EarthLocation, get_body,
                                      solar_system_ephemeris)
     from astropy.time import Time
 
@@ -115,12 +116,7 @@ def airless_altaz(body: str, when: datetime, lat_deg: float, lon_deg: float):
                 aa = get_body(body.lower(), t, location=loc).transform_to(frame)
             return float(aa.alt.deg), float(aa.az.deg), float(aa.distance.km)
         s = find_star(body)
-        star = SkyCoord(ra=s.ra_deg * u.deg, dec=s.dec_deg * u.deg,
-                        pm_ra_cosdec=s.pm_ra_cosdec_mas_per_yr * u.mas / u.yr,
-                        pm_dec=s.pm_dec_mas_per_yr * u.mas / u.yr,
-                        distance=Distance(parallax=s.parallax_mas * u.mas),
-                        radial_velocity=0 * u.km / u.s, frame="icrs",
-                        obstime=Time(s.epoch_jyear, format="jyear", scale="tt"))
+        star = star_skycoord(s)
         aa = star.apply_space_motion(new_obstime=t).transform_to(frame)
     return float(aa.alt.deg), float(aa.az.deg), None
 

@@ -31,6 +31,7 @@ from hypothesis import strategies as hst
 
 from nav.logbook import load_log, new_log
 from nav.units import ARCMIN_DEG, NMI_M
+from reference_sky import star_skycoord
 
 UTC = timezone.utc
 ARCMIN = ARCMIN_DEG
@@ -92,7 +93,7 @@ def hs_text(hs_deg: float) -> str:
 def synthetic_hs() -> dict:
     """Body -> (Hs as a deck log writes it, airless altitude): astropy AltAz at the truth."""
     from astropy import units as u
-    from astropy.coordinates import AltAz, Distance, EarthLocation, SkyCoord
+    from astropy.coordinates import AltAz, EarthLocation
     from astropy.time import Time
 
     from nav.stars import find_star
@@ -103,12 +104,7 @@ def synthetic_hs() -> dict:
         for body, t in PLAN:
             lat, lon = truth_at(t)
             s = find_star(body)
-            star = SkyCoord(ra=s.ra_deg * u.deg, dec=s.dec_deg * u.deg,
-                            pm_ra_cosdec=s.pm_ra_cosdec_mas_per_yr * u.mas / u.yr,
-                            pm_dec=s.pm_dec_mas_per_yr * u.mas / u.yr,
-                            distance=Distance(parallax=s.parallax_mas * u.mas),
-                            radial_velocity=0 * u.km / u.s, frame="icrs",
-                            obstime=Time(s.epoch_jyear, format="jyear", scale="tt"))
+            star = star_skycoord(s)
             tt = Time(t.replace(tzinfo=None), scale="utc")
             frame = AltAz(obstime=tt, location=EarthLocation.from_geodetic(
                 lon * u.deg, lat * u.deg, 0 * u.m), pressure=0 * u.hPa)

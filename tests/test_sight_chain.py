@@ -28,6 +28,7 @@ import pytest
 
 from nav.reduction import reduce_sights
 from nav.units import ARCMIN_DEG as ARCMIN
+from reference_sky import star_skycoord
 
 NMI = 1.0                                   # the unit of *_nmi values (1′ of great circle)
 SUN_RADIUS_KM = 696_000.0                   # solar radius behind the almanac's SD 15.99′ at 1 AU
@@ -65,7 +66,7 @@ def _apparent_from_true(h_deg, temperature_c, pressure_hpa):
 def synthetic_sights():
     """Sights of Sun, Moon, planets and stars at random positions and instants (fixed seed)."""
     from astropy import units as u
-    from astropy.coordinates import (AltAz, Distance, EarthLocation, SkyCoord, get_body,
+    from astropy.coordinates import (AltAz, EarthLocation, get_body,
                                      solar_system_ephemeris)
     from astropy.time import Time
 
@@ -91,12 +92,7 @@ def synthetic_sights():
                 dist = aa.distance.km
             else:
                 s = find_star(body)
-                star = SkyCoord(ra=s.ra_deg * u.deg, dec=s.dec_deg * u.deg,
-                                pm_ra_cosdec=s.pm_ra_cosdec_mas_per_yr * u.mas / u.yr,
-                                pm_dec=s.pm_dec_mas_per_yr * u.mas / u.yr,
-                                distance=Distance(parallax=s.parallax_mas * u.mas),
-                                radial_velocity=0 * u.km / u.s, frame="icrs",
-                                obstime=Time(s.epoch_jyear, format="jyear", scale="tt"))
+                star = star_skycoord(s)
                 aa = star.apply_space_motion(new_obstime=t).transform_to(frame)
                 dist = np.full(n, np.nan)
             keep = np.flatnonzero((aa.alt.deg > 6.0) & (aa.alt.deg < 86.0))[:PER_BODY]
