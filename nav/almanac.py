@@ -365,9 +365,3 @@ def meridian_passage(body: str, lon_deg: float, near: datetime, *, tolerance_s: 
         if abs(step_s) < tolerance_s:
             break
     return t
-
-
-def local_noon_guess(date_utc: datetime, lon_deg: float) -> datetime:
-    """12:00 local mean time on a date, in UTC (a starting point for the Sun's meridian passage)."""
-    base = date_utc.replace(hour=12, minute=0, second=0, microsecond=0)
-    return base - timedelta(hours=lon_deg / 15.0)

@@ -18,7 +18,7 @@ The log (:mod:`nav.logbook`) stores what was entered; this module reads its *eff
 from __future__ import annotations
 
 import bisect
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from datetime import datetime, timedelta
 from typing import Sequence
 
@@ -261,9 +261,6 @@ class Passage:
             w = self.where(t)
             out.append((t, w.lat_deg, w.lon_deg, w.basis if w.age == timedelta(0) else "dr"))
         return out
-
-    def with_settings(self, **changes) -> Settings:
-        return replace(self.settings, **changes)
 
 
 def now_utc() -> datetime:
