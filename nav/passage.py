@@ -110,6 +110,7 @@ class Passage:
         self.note_entries = [e for e in entries if e.kind == "note"]
         self._settings_before: dict[str, Settings] = {}
         running = dict(DEFAULTS)
+        changes: list[tuple] = []      # (utc, course or None, speed or None, id) of dr entries
         for e in entries:
             if e.kind == "setting":
                 running.update({k: e[k] for k in DEFAULTS if k in e.data})
@@ -121,16 +122,19 @@ class Passage:
                     self.anchors.append(Anchor(t, e["lat_deg"], e["lon_deg"],
                                                e.get("position_basis", "dr"), e.id))
                 if "course_deg" in e.data or "speed_kn" in e.data:
-                    prev = self.leg_at(t)
-                    self.legs.append(Leg(t, e.get("course_deg", prev.course_deg if prev else None),
-                                         float(e.get("speed_kn", prev.speed_kn if prev else 0.0)),
-                                         e.id))
-                    self.legs.sort(key=lambda leg: leg.utc)
+                    changes.append((t, e.get("course_deg"), e.get("speed_kn"), e.id))
             elif e.kind == "fix":
                 self.anchors.append(Anchor(_utc(e), e["lat_deg"], e["lon_deg"],
                                            e["fix_kind"].replace("_", " "), e.id))
         self.anchors.sort(key=lambda a: a.utc)
         self._anchor_times = [a.utc for a in self.anchors]
+        # A change that gives only a course keeps the speed in force then, and the other way round.
+        course, speed = None, 0.0
+        for t, c, v, eid in sorted(changes, key=lambda x: x[0]):
+            course = c if c is not None else course
+            speed = float(v) if v is not None else speed
+            self.legs.append(Leg(t, course, speed, eid))
+        self._leg_times = [leg.utc for leg in self.legs]
 
     @staticmethod
     def _settings(entries) -> Settings:
@@ -143,8 +147,7 @@ class Passage:
     # ------------------------------------------------------------ the track
 
     def leg_at(self, utc: datetime) -> Leg | None:
-        times = [leg.utc for leg in self.legs]
-        i = bisect.bisect_right(times, utc) - 1
+        i = bisect.bisect_right(self._leg_times, utc) - 1
         return self.legs[i] if i >= 0 else None
 
     def _sail(self, lat: float, lon: float, t_from: datetime, t_to: datetime) -> tuple[float, float]:
@@ -268,36 +271,10 @@ def now_utc() -> datetime:
 
 
 # ---------------------------------------------------------------- the passage as it stood
-# (added for the demo's replay and the generator: small and separate from the above)
-
-class _LogBefore:
-    """A read-only view of a loaded log holding only the effective entries logged before one
-    entry (by id order), so that a Passage can be rebuilt as the navigator had it then."""
-
-    def __init__(self, log, entry_id: str):
-        self.header = log.header
-        self._log, self._limit = log, int(entry_id[1:])
-
-    def effective_entries(self, kind: str | None = None):
-        return [e for e in self._log.effective_entries(kind) if int(e.id[1:]) < self._limit]
-
-    def entry_by_id(self, eid: str):
-        e = self._log.entry_by_id(eid)
-        return e if e is not None and int(eid[1:]) < self._limit else None
-
-
-def passage_before(passage: Passage, entry_id: str) -> Passage:
-    """The passage as it stood just before `entry_id` was logged: its DR knows only the anchors,
-    legs and settings logged earlier. Replaying a stored fix with it reproduces the fix as it was
-    computed (the fix's own anchor is not yet there to reset the DR of its sights). The view is
-    the effective one: a strike or correction logged later is applied to the earlier entries."""
-    if passage.log.entry_by_id(entry_id) is None:
-        raise NavInputError(f"no entry {entry_id} in this log", field="id", example="e0012")
-    return Passage(_LogBefore(passage.log, entry_id))
-
 
 class _EntriesView:
-    """Some of the effective entries of a log, for a Passage rebuilt from them."""
+    """Some of the effective entries of a log (a strike or correction logged later is applied),
+    for a Passage rebuilt from them."""
 
     def __init__(self, log, keep):
         self.header = log.header
@@ -305,6 +282,16 @@ class _EntriesView:
 
     def effective_entries(self, kind: str | None = None):
         return [e for e in self._entries if kind is None or e.kind == kind]
+
+
+def passage_before(passage: Passage, entry_id: str) -> Passage:
+    """The passage as it stood just before `entry_id` was logged: its DR knows only the anchors,
+    legs and settings logged earlier. Replaying a stored fix with it reproduces the fix as it was
+    computed (the fix's own anchor is not yet there to reset the DR of its sights)."""
+    if passage.log.entry_by_id(entry_id) is None:
+        raise NavInputError(f"no entry {entry_id} in this log", field="id", example="e0012")
+    limit = int(entry_id[1:])
+    return Passage(_EntriesView(passage.log, lambda e: int(e.id[1:]) < limit))
 
 
 def passage_for_sight(log, sight_id: str) -> Passage:
