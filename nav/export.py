@@ -11,6 +11,18 @@ CSV cells that a spreadsheet would run as a formula (first character ``=`` ``+``
 tab or carriage return, or their full-width forms) get a leading single quote, so they show as
 text. A plain decimal number (``-12.5``, ``+3``, ``1e-05``) is left alone so it stays a number:
 a spreadsheet reads it as a number, not as a formula. Everything else is left as it is.
+
+The sights of a passage log go out as two CSV files (:func:`export_sights`):
+
+- a *batch file* with exactly the columns of the batch contract (:data:`SIGHT_CSV_COLUMNS`, the
+  fields of :mod:`nav.fields` that ``nav reduce``, ``nav fix`` and ``nav import`` read), holding
+  the values each reduction used: the settings in force and the DR at the sight's time filled
+  in, so that ``nav reduce`` on the file gives the log's intercepts again. ``hs`` is as typed; a
+  typed altitude that would need the formula quote (``-0 03.1``) is written with the minus sign
+  U+2212 instead, which the angle parser reads and no spreadsheet runs. A note keeps its quote.
+- a *reductions* table (:data:`REDUCTION_CSV_COLUMNS`): the log's ids and typed times, the same
+  inputs with unit suffixes, and Ho, GHA, Dec, LHA, Hc, Zn and the intercept (decimal degrees,
+  nmi) with the reduction's warnings. It is an output, not an input: nothing reads it back.
 """
 
 from __future__ import annotations
@@ -22,11 +34,13 @@ import re
 import xml.etree.ElementTree as ET
 from dataclasses import dataclass, fields
 from datetime import datetime
+from decimal import Decimal
 from typing import Any, Iterable, Mapping, Sequence
 
 from . import CAUTION, __version__
-from .angles import format_lat, format_lon
+from .angles import MINUS, format_lat, format_lon, parse_altitude
 from .errors import NavInputError
+from .fields import SIGHT_FIELDS, default_limb
 from .timekeeping import ISO_EXAMPLE, format_utc, parse_utc
 
 GPX_NS = "http://www.topografix.com/GPX/1/1"
@@ -257,14 +271,133 @@ def sights_to_csv(rows: Iterable[Mapping], columns: Sequence[str]) -> str:
     return out.getvalue()
 
 
-SIGHT_CSV_COLUMNS = ("id", "body", "utc", "time_source", "time_text", "hs", "hs_deg", "limb",
-                     "index_error_arcmin", "eye_height_m", "temperature_c", "pressure_hpa",
-                     "horizon", "dr_lat_deg", "dr_lon_deg", "revised_by", "note")
+SIGHT_CSV_COLUMNS = tuple(f.name for f in SIGHT_FIELDS)     # the batch contract, in its order
+REDUCTION_CSV_COLUMNS = (
+    "row", "id", "revised_by", "utc", "time_source", "time_text", "body", "limb", "hs", "hs_deg",
+    "index_error_arcmin", "eye_height_m", "temperature_c", "pressure_hpa", "horizon",
+    "dr_lat_deg", "dr_lon_deg", "dr_basis", "ho_deg", "gha_deg", "dec_deg", "lha_deg", "hc_deg",
+    "zn_deg", "intercept_nmi", "warnings", "note")
+REDUCED = ("ho_deg", "gha_deg", "dec_deg", "lha_deg", "hc_deg", "zn_deg", "intercept_nmi")
+REDUCED_DECIMALS = 7                   # as nav reduce --json: 1e-7° is 0.0004″
+
+
+@dataclass(frozen=True)
+class SightExport:
+    """The sights of a passage log, in time order: the batch file's rows (keys
+    :data:`SIGHT_CSV_COLUMNS`), the reductions table's rows (keys :data:`REDUCTION_CSV_COLUMNS`),
+    and notes for the user (a sight with no DR, a sight the chain refuses)."""
+
+    rows: tuple[dict, ...]
+    reductions: tuple[dict, ...]
+    notes: tuple[str, ...]
+
+
+def _decimal(v: float | None) -> str:
+    """A number as positional decimals that read back exactly (the angle parsers take no
+    exponent): ``-0.00001``, never ``-1e-05``."""
+    return "" if v is None else format(Decimal(repr(float(v))), "f")
+
+
+def _batch_hs(typed: str, hs_deg: float) -> str:
+    """The typed Hs for the batch file: as typed, unless the formula quote would make it
+    unreadable (then a leading ``-`` becomes U+2212 and a ``+`` is dropped); decimal degrees
+    if even that does not read back as the logged value."""
+    text = typed.strip()
+    if neutralise_cell(text) != text:
+        text = MINUS + text[1:] if text.startswith("-") else text.lstrip("+")
+    try:
+        if abs(parse_altitude(text) - hs_deg) <= 1e-9 and neutralise_cell(text) == text:
+            return text
+    except NavInputError:
+        pass
+    return _decimal(hs_deg)
+
+
+def export_sights(log) -> SightExport:
+    """The effective sights of a loaded passage log for the two CSV files (module doc)."""
+    from .workflow import reduce_rows
+
+    from .passage import Passage
+
+    passage = Passage(log)
+    for_sight = passage.reduction_view
+    entries = sorted(passage.sight_entries, key=lambda e: parse_utc(e["utc"]))
+    notes: list[str] = []
+    pairs = []                                        # (entry, SightRow or None, passage)
+    for i, e in enumerate(entries, 1):
+        p = for_sight(e)
+        try:
+            pairs.append((e, p.sight_row(e, number=i), p))
+        except NavInputError as err:
+            pairs.append((e, None, p))
+            notes.append(f"{e.id} ({e['body']} {e['utc']}): {err.reason}; its DR cells are "
+                         "blank and it is not reduced")
+    ok = [r for _, r, _ in pairs if r is not None]
+    reduced: dict[int, object] = {}
+    try:
+        red = reduce_rows(ok) if ok else None
+        reduced = {r.row: red.sight(k) for k, r in enumerate(ok)}
+    except NavInputError:                              # find the sights the chain refuses
+        for r in ok:
+            try:
+                reduced[r.row] = reduce_rows([r]).sight(0)
+            except NavInputError as err:
+                reduced[r.row] = err
+    rows, table = [], []
+    for i, (e, r, p) in enumerate(pairs, 1):
+        s = reduced.get(i)
+        if isinstance(s, NavInputError):
+            notes.append(f"{e.id} ({e['body']} {e['utc']}): not reduced: {s.reason}")
+        rows.append(_batch_row(e, r))
+        table.append(_reduction_row(i, e, r, p, s))
+    return SightExport(tuple(rows), tuple(table), tuple(notes))
+
+
+def _batch_row(e, r) -> dict:
+    row = {"utc": e["utc"], "body": e["body"], "hs": _batch_hs(str(e["hs"]), e["hs_deg"]),
+           "note": e.get("note", "")}
+    if r is None:
+        return row
+    course = r.course_deg
+    row.update(limb=r.limb if r.limb is not None else default_limb(r.body) or "",
+               index_error=_decimal(r.index_error_arcmin), eye_height_m=_decimal(r.eye_height_m),
+               temperature_c=_decimal(r.temperature_c), pressure_hpa=_decimal(r.pressure_hpa),
+               horizon=r.horizon, dr_lat=_decimal(r.dr_lat_deg), dr_lon=_decimal(r.dr_lon_deg),
+               course_deg=_decimal(course), sigma_arcmin=_decimal(r.sigma_arcmin), note=r.note,
+               speed_kn=_decimal(r.speed_kn) if course is not None and r.speed_kn is not None
+               else "")
+    return row
+
+
+def _reduction_row(i: int, e, r, p, s) -> dict:
+    out = {"row": i, "id": e.id, "revised_by": e.revised_by, "utc": e["utc"],
+           "time_source": e.get("time_source"), "time_text": e.get("time_text"),
+           "body": e["body"], "limb": e.get("limb"), "hs": e["hs"], "hs_deg": e["hs_deg"],
+           "note": e.get("note", "")}
+    if r is None:
+        return out
+    out.update(limb=r.limb if r.limb is not None else default_limb(r.body),
+               index_error_arcmin=r.index_error_arcmin, eye_height_m=r.eye_height_m,
+               temperature_c=r.temperature_c, pressure_hpa=r.pressure_hpa, horizon=r.horizon,
+               dr_lat_deg=r.dr_lat_deg, dr_lon_deg=r.dr_lon_deg,
+               dr_basis="given with the sight" if r.dr_given else p.where(r.utc).describe())
+    if isinstance(s, NavInputError):
+        out["warnings"] = f"not reduced: {s.reason}"
+    elif s is not None:
+        out.update({k: round(float(getattr(s, k)), REDUCED_DECIMALS) for k in REDUCED})
+        out["warnings"] = "; ".join(s.warnings)
+    return out
 
 
 def sight_rows(log) -> list[dict]:
-    """The effective sights of a loaded passage log as CSV rows (``revised_by`` when corrected)."""
-    return [{**e.to_dict(), "revised_by": e.revised_by} for e in log.effective_entries("sight")]
+    """The effective sights of a loaded passage log as rows of the batch file, in time order
+    (:data:`SIGHT_CSV_COLUMNS`; see :func:`export_sights`)."""
+    return list(export_sights(log).rows)
+
+
+def reduction_rows(log) -> list[dict]:
+    """The effective sights with their reductions (:data:`REDUCTION_CSV_COLUMNS`)."""
+    return list(export_sights(log).reductions)
 
 
 def points_from_log(log) -> tuple[list[ExportPoint], list[ExportPoint]]:

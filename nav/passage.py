@@ -213,6 +213,17 @@ class Passage:
             course_deg=leg.course_deg if leg else None, speed_kn=leg.speed_kn if leg else None,
             sigma_arcmin=pick("sigma_arcmin", 1.0), note=entry.get("note", ""))
 
+    def reduction_view(self, sight_entry) -> "Passage":
+        """The passage a logged sight is reduced from: the one without the fixes it went into
+        (a sight is reduced from the DR at its time, never from its own fix)."""
+        users = frozenset(f.id for f in self.fix_entries if sight_entry.id in f["sight_ids"])
+        if not users:
+            return self
+        views = self.__dict__.setdefault("_views", {})
+        if users not in views:
+            views[users] = passage_for_sight(self.log, sight_entry.id)
+        return views[users]
+
     def sights(self) -> list[tuple[object, SightRow]]:
         """Every effective sight, in time order, with its row."""
         out = [(e, self.sight_row(e)) for e in self.sight_entries]

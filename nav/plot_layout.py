@@ -40,6 +40,10 @@ LINE_COLOURS = ("#0072B2", "#009E73", "#CC79A7", "#56B4E9", "#117733", "#999933"
                 "#882255", "#44AA99", "#7F7F7F")
 WARN, FIX_C, DR_C, TRACK_C, GREY = "#D55E00", "#000000", "#5A3E2B", "#0072B2", "#333333"
 ELLIPSE_FILL = "#f2c0a5"
+# A known position: a yellow star edged in near-black (no other mark is a star, none is yellow);
+# a reference track: a thin dash-dotted purple line (Tol's purple), unlike the solid DR track.
+KNOWN_FILL, KNOWN_EDGE, REF_C = "#F0E442", "#1A1A1A", "#AA3377"
+REF_STYLE = dict(color=REF_C, lw=1.2, ls=(0, (7, 2, 1.5, 2)))
 LABEL_BOX = dict(boxstyle="square,pad=0.15", fc="white", ec="none", alpha=0.85)
 SUMMARY_TEXT = dict(fontsize=8.5, family="DejaVu Sans Mono", gid="summary",
                     bbox=dict(boxstyle="round,pad=0.4", fc="#f4f6f8", ec="#8a99a6", lw=0.8))
@@ -64,6 +68,8 @@ KEY = {   # legend entries: styles of the proxy artists
     "warned": _mark("o", WARN, "with warnings (!)"),
     "track": dict(color=TRACK_C, lw=1.6, marker="o", ms=3.5, label="DR track"),
     "ellipse": dict(patch=True, fc=ELLIPSE_FILL, ec=WARN, alpha=0.6, label="error ellipse"),
+    "known": _mark("*", KNOWN_EDGE, "known position", ms=13, mfc=KNOWN_FILL, mew=0.9),
+    "ref": dict(REF_STYLE, label="reference track"),
 }
 
 

@@ -21,9 +21,9 @@ from .angles import cosd, format_lat, format_lon, norm180, sind
 from .errors import NavInputError
 from .export import ExportPoint, as_point
 from .fix import LOP, Fix
-from .plot_layout import (DPI, DR_C, ELLIPSE_FILL, FIX_C, GREY, LINE_COLOURS, SUMMARY_TEXT,
-                          TRACK_C, WARN, WARNINGS_TEXT, Sheet, clip_line, fit_limits,
-                          lat_tick_label, new_chart, side_panel)
+from .plot_layout import (DPI, DR_C, ELLIPSE_FILL, FIX_C, GREY, KEY, KNOWN_EDGE, KNOWN_FILL,
+                          LINE_COLOURS, REF_STYLE, SUMMARY_TEXT, TRACK_C, WARN, WARNINGS_TEXT,
+                          Sheet, clip_line, fit_limits, lat_tick_label, new_chart, side_panel)
 from .sailing import rhumb_line
 from .timekeeping import UTC, format_hm
 from .units import NMI_PER_DEG
@@ -79,15 +79,49 @@ def _fix_marker(ax, placer, x, y, colour=FIX_C, running=False, size=11):
     placer.block_point((x, y), 0.8 * size)
 
 
+def _known_marker(ax, placer, x, y, keep_off_px=50.0):
+    """A known (true) position: a star, drawn over the fix's ring so that both stay readable.
+    No label may cover it, and labels rather keep `keep_off_px` away, so none reads as its."""
+    ax.plot([x], [y], "*", ms=12, mfc=KNOWN_FILL, mec=KNOWN_EDGE, mew=0.9, zorder=10,
+            gid="known")
+    placer.block_point((x, y), 8)
+    px, py = ax.transData.transform((x, y))
+    t = np.linspace(0.0, 2.0 * np.pi, 49)
+    ring = ax.transData.inverted().transform(np.column_stack([px + keep_off_px * np.cos(t),
+                                                              py + keep_off_px * np.sin(t)]))
+    placer.line(ring[:, 0], ring[:, 1])
+
+
+def _away_from(ax, candidates, xy, within_px=150.0, cone_deg=35.0):
+    """The label candidates round a point that do not head for `xy` (a mark within
+    `within_px`), so that neither the label nor its leader reads as that mark's."""
+    if xy is None:
+        return candidates
+    (px, py), (qx, qy) = ax.transData.transform([candidates[0][0], xy])
+    if math.hypot(qx - px, qy - py) > within_px:
+        return candidates
+    towards = math.atan2(qy - py, qx - px)
+    kept = [(c, d) for c, d in candidates
+            if abs(math.remainder(math.atan2(d[1], d[0]) - towards, 2 * math.pi))
+            > math.radians(cone_deg)]
+    return kept or candidates
+
+
 # ---------------------------------------------------------------- the plotting sheet
 
+def _as_position(p, fix: Fix, name: str, kind: str, what: str) -> ExportPoint | None:
+    """`p` as an ExportPoint: an ExportPoint or dict of its fields, (lat_deg, lon_deg) at the
+    fix time, or (lat_deg, lon_deg, utc); None stays None."""
+    if isinstance(p, (tuple, list)):
+        if len(p) not in (2, 3):
+            raise NavInputError(f"the {what} is (lat_deg, lon_deg) or (lat_deg, lon_deg, utc)",
+                                field=name, example="(41.2, -32.1, fix.utc)")
+        p = {"lat_deg": p[0], "lon_deg": p[1], "utc": (*p, fix.utc)[2], "kind": kind}
+    return None if p is None else as_point(p, name)
+
+
 def _as_dr(dr, fix: Fix) -> ExportPoint | None:
-    if isinstance(dr, (tuple, list)):
-        if len(dr) not in (2, 3):
-            raise NavInputError("the DR is (lat_deg, lon_deg) or (lat_deg, lon_deg, utc)",
-                                field="dr", example="(41.2, -32.1, fix.utc)")
-        dr = {"lat_deg": dr[0], "lon_deg": dr[1], "utc": (*dr, fix.utc)[2], "kind": "dr"}
-    return None if dr is None else as_point(dr, "dr")
+    return _as_position(dr, fix, "dr", "dr", "DR")
 
 
 def _lop_flags(fix: Fix, lops: Sequence[LOP]) -> list[bool]:
@@ -167,15 +201,18 @@ def _label_lops(placer, sheet, lops, geo, lines, flags, colours, xlim, ylim):
                      gaps=(3.0, 10.0, 20.0), color=col, fontsize=8, gid=f"intercept_label_{i}")
 
 
-def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, title: str = "",
+def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, known=None,
+                   known_label: str = KEY["known"]["label"], title: str = "",
                    path=None) -> "Figure":
     """A plotting sheet for one fix: DR, APs, azimuths, intercepts, LOPs, the fix, its ellipse.
 
     `lops` as :func:`nav.fix.lop_at` gives them (advanced ones carry ``advanced_nmi``); a LOP
     whose sight the fix flagged is drawn in the warning colour. `dr`: an
     :class:`nav.export.ExportPoint` (or a dict of its fields), ``(lat_deg, lon_deg)`` (at the
-    fix time) or ``(lat_deg, lon_deg, utc)``. With `path` the figure is also saved, PNG or PDF by
-    the extension. Returns the Figure.
+    fix time) or ``(lat_deg, lon_deg, utc)``. `known`: a position known independently of the
+    sights (a true position, in the same forms as `dr`), drawn as a star, named `known_label` in
+    the key, with the fix's distance from it in the summary. With `path` the figure is also
+    saved, PNG or PDF by the extension. Returns the Figure.
     """
     if not isinstance(fix, Fix):
         raise NavInputError("fix must be the result of nav.fix.solve_fix", field="fix")
@@ -184,13 +221,14 @@ def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, title: str = "",
         raise NavInputError("lops must be one or more LOPs (nav.fix.lop_at)", field="lops",
                             example="[lop_at(s, ap_lat, ap_lon, fix.utc) for s in sights]")
     saved, drp, flags = _check_path(path), _as_dr(dr, fix), _lop_flags(fix, lops)
+    kp = _as_position(known, fix, "known", "other", "known position")
     colours = [WARN if bad else LINE_COLOURS[i % len(LINE_COLOURS)] for i, bad in enumerate(flags)]
     e = fix.ellipse
     axes = (e.semi_major_nmi, e.semi_minor_nmi, e.orientation_deg)
 
     # The latitude extent does not depend on the longitude scale: fix the mid latitude first.
     pts = [(fix.lat_deg, fix.lon_deg)] + [(lp.ap_lat_deg, lp.ap_lon_deg) for lp in lops] + \
-        ([(drp.lat_deg, drp.lon_deg)] if drp else [])
+        [(p.lat_deg, p.lon_deg) for p in (drp, kp) if p is not None]
     lats = [p[0] for p in pts] + list(Sheet(0.0, 1.0).ellipse(0.0, fix.lat_deg, *axes)[1]) + \
         [lp.ap_lat_deg + lp.intercept_nmi * float(cosd(lp.zn_deg)) / NMI_PER_DEG for lp in lops]
     mid_lat = 0.5 * (min(lats) + max(lats))
@@ -228,9 +266,12 @@ def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, title: str = "",
         ax.plot([drx], [drp.lat_deg], "s", ms=8, mfc="white", mec=DR_C, mew=1.6, zorder=8)
         ax.plot([drx], [drp.lat_deg], ".", ms=3, color=DR_C, zorder=8)
         placer.block_point((drx, drp.lat_deg), 7)
+    if kp is not None:
+        _known_marker(ax, placer, sheet.x(kp.lon_deg), kp.lat_deg)
+    star = None if kp is None else (sheet.x(kp.lon_deg), kp.lat_deg)
     placer.place(f"{kind} {when(fix.utc)}\n{format_lat(fix.lat_deg)}  {format_lon(fix.lon_deg)}",
-                 placer.around((fx, fy)), gaps=(8.0, 20.0, 36.0, 60.0, 90.0), leader_from=20.0,
-                 fontsize=9, weight="bold", gid="fix_label")
+                 _away_from(ax, placer.around((fx, fy)), star), gaps=(8.0, 20.0, 36.0, 60.0, 90.0),
+                 leader_from=20.0, fontsize=9, weight="bold", gid="fix_label")
     if drp is not None:
         placer.place(f"DR {when(drp.utc)}", placer.around((sheet.x(drp.lon_deg), drp.lat_deg)),
                      gaps=(3.0, 12.0, 26.0), color=DR_C, gid="dr_label")
@@ -239,12 +280,19 @@ def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, title: str = "",
     conf = f"{e.confidence * 100:.0f} %"
     keys = (["dr"] if drp else []) + ["ap", "az", "int", "lop"] + \
         (["adv"] if any(lp.advanced_nmi > 0 for lp in lops) else []) + \
-        (["bad"] if any(flags) else []) + ["fix", "ellipse"]
+        (["bad"] if any(flags) else []) + ["fix"] + (["known"] if kp else []) + ["ellipse"]
     summary = [f"{kind} {when(fix.utc)} UTC {when(fix.utc, 'date')}",
                f"{format_lat(fix.lat_deg)}   {format_lon(fix.lon_deg)}",
                f"{conf} ellipse {e.semi_major_nmi:.1f} × {e.semi_minor_nmi:.1f} nmi,",
                f"  major axis {e.orientation_deg:03.0f}° T",
-               f"{fix.n_sights} sights; widest angle of cut {fix.cut_angle_deg:.0f}°", "",
+               f"{fix.n_sights} sights; widest angle of cut {fix.cut_angle_deg:.0f}°"]
+    if kp is not None:
+        brg, dist = (float(v) for v in rhumb_line(kp.lat_deg, kp.lon_deg, fix.lat_deg,
+                                                  fix.lon_deg))
+        summary += [f"{known_label}:", f"  {format_lat(kp.lat_deg)}   {format_lon(kp.lon_deg)}",
+                    f"  the {fix.kind} lies {dist:.2f} nmi"
+                    + (f" {brg:03.0f}° T" if dist >= 0.005 else "") + " from it"]
+    summary += ["",
                " # body            UTC    Zn     int.   adv."]
     for i, (lp, bad) in enumerate(zip(lops, flags), 1):
         adv = f"{lp.advanced_nmi:5.1f}" if lp.advanced_nmi > 0 else "    –"
@@ -256,7 +304,7 @@ def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, title: str = "",
         ([(["Warnings"] + warned, WARNINGS_TEXT)] if warned else [])
     side_panel(fig, placer.renderer, keys, blocks,
                 {"adv": f"LOP advanced to {when(fix.utc)} (AP's run dotted)", "fix": kind,
-                 "ellipse": f"{conf} error ellipse"})
+                 "ellipse": f"{conf} error ellipse", "known": known_label})
     _save(fig, saved, title)
     return fig
 
@@ -281,16 +329,35 @@ def passage_distance_nmi(track) -> float:
     return float(np.sum(rhumb_line(lat[:-1], lon[:-1], lat[1:], lon[1:])[1]))
 
 
-def plot_passage(track, fixes, *, title: str = "", path=None) -> "Figure":
+FIX_MARKER_PT = 10            # the fix markers of the passage plot (points)
+
+
+def _unwrapped(points, start_x: float) -> list[float]:
+    """Sheet x of time-ordered points, unwrapped leg by leg from `start_x` (across 180° too)."""
+    xs = [start_x] if points else []
+    for a, b in zip(points, points[1:]):
+        xs.append(xs[-1] + float(norm180(b.lon_deg - a.lon_deg)))
+    return xs
+
+
+def plot_passage(track, fixes, *, reference_track=None,
+                 reference_label: str = KEY["ref"]["label"], title: str = "",
+                 path=None) -> "Figure":
     """The DR track (points joined in time order), the fixes and running fixes, the distance run.
 
     `track`: :class:`nav.export.ExportPoint` (or dicts of its fields); `fixes`: ExportPoints or
-    :class:`nav.fix.Fix` results. With `path` the figure is also saved, PNG or PDF by the
-    extension. Returns the Figure.
+    :class:`nav.fix.Fix` results. `reference_track`: points of another track to compare with
+    (a track known independently, e.g. a true one), in the same form as `track`, drawn as a thin
+    dash-dotted line named `reference_label` in the key. A fix's error ellipse is drawn only
+    where it shows beyond the fix's marker at the plot's scale (then the key names it); else the
+    summary says that the ellipses are too small to show. With `path` the figure is also saved,
+    PNG or PDF by the extension. Returns the Figure.
     """
     track = sorted((as_point(p, f"track[{i}]") for i, p in enumerate(track or ())),
                    key=lambda p: p.utc)
     fixes = sorted((_as_fix_point(f, i) for i, f in enumerate(fixes or ())), key=lambda p: p.utc)
+    ref = sorted((as_point(p, f"reference_track[{i}]")
+                  for i, p in enumerate(reference_track or ())), key=lambda p: p.utc)
     if not track and not fixes:
         raise NavInputError("nothing to plot: no track points and no fixes", field="track",
                             example="ExportPoint(utc, lat_deg, lon_deg, 'dr', '')")
@@ -301,17 +368,16 @@ def plot_passage(track, fixes, *, title: str = "", path=None) -> "Figure":
                               p.ellipse_orientation_deg or 0.0)
                 if p.ellipse_semi_major_nmi is not None else None for p, x in zip(fixes, xs)]
 
-    ys = [p.lat_deg for p in every] + [v for o in outlines(Sheet(0.0, 1.0), [0.0] * len(fixes))
-                                       if o is not None for v in o[1]]     # lat: scale-free
+    ys = [p.lat_deg for p in every + ref] + \
+        [v for o in outlines(Sheet(0.0, 1.0), [0.0] * len(fixes)) if o is not None
+         for v in o[1]]                                                    # lat: scale-free
     mid_lat = 0.5 * (min(ys) + max(ys))
-    tx = [every[0].lon_deg]
-    for a, b in zip(track, track[1:]):                  # unwrapped leg by leg (across 180° too)
-        tx.append(tx[-1] + float(norm180(b.lon_deg - a.lon_deg)))
-    tx = tx[:len(track)]
+    tx = _unwrapped(track, every[0].lon_deg)
     sheet = Sheet(float(np.mean(tx)) if track else every[0].lon_deg, float(cosd(mid_lat)))
     fxs = [sheet.x(p.lon_deg) for p in fixes]
+    rx = _unwrapped(ref, sheet.x(ref[0].lon_deg)) if ref else []
     ells = outlines(sheet, fxs)
-    xs = tx + fxs + [v for o in ells if o is not None for v in o[0]]
+    xs = tx + fxs + rx + [v for o in ells if o is not None for v in o[0]]
     xlim, ylim = fit_limits(sheet, xs, ys, min_half_nmi=2.0, margin=0.12)
     run_nmi = passage_distance_nmi(track)
     t0, t1 = min(p.utc for p in every), max(p.utc for p in every)
@@ -322,6 +388,10 @@ def plot_passage(track, fixes, *, title: str = "", path=None) -> "Figure":
                              f"{lat_tick_label(mid_lat)}; distance run {run_nmi:.1f} nmi.")
     from matplotlib.patches import Polygon
 
+    if ref:
+        ry = [p.lat_deg for p in ref]
+        ax.plot(rx, ry, zorder=6, gid="reference_track", **REF_STYLE)   # over the DR track
+        placer.line(rx, ry)
     if track:
         ty = [p.lat_deg for p in track]
         ax.plot(tx, ty, "-", color=TRACK_C, lw=1.6, zorder=4, gid="track")
@@ -329,12 +399,21 @@ def plot_passage(track, fixes, *, title: str = "", path=None) -> "Figure":
         placer.line(tx, ty)
         for x, y in zip(tx, ty):
             placer.block_point((x, y), 3)
-    for p, x, o in zip(fixes, fxs, ells):
-        if o is not None:
+    # An ellipse is drawn where it reaches 2 px beyond the ring of the fix's marker; smaller
+    # ones would hide under the marker (a 2-nmi ellipse is below a pixel on an ocean passage).
+    px_per_nmi = float(np.diff(ax.transData.transform([(xlim[0], ylim[0]),
+                                                       (xlim[0], ylim[0] + 1.0 / NMI_PER_DEG)]),
+                               axis=0)[0, 1])
+    ring_px = 0.5 * FIX_MARKER_PT * DPI / 72.0 + 2.0
+    shown = [o is not None and p.ellipse_semi_major_nmi * px_per_nmi >= ring_px
+             for p, o in zip(fixes, ells)]
+    for p, x, o, show in zip(fixes, fxs, ells, shown):
+        if show:
             ax.add_patch(Polygon(np.column_stack(o), closed=True, fc=ELLIPSE_FILL, ec=WARN,
-                                 lw=0.8, alpha=0.4, zorder=5))
+                                 lw=0.8, alpha=0.4, zorder=5, gid="ellipse"))
+            placer.line(*o)
         _fix_marker(ax, placer, x, p.lat_deg, WARN if p.warnings else FIX_C,
-                    p.kind == "running_fix", size=10)
+                    p.kind == "running_fix", size=FIX_MARKER_PT)
     for p, x in zip(fixes, fxs):
         placer.place(when(p.utc, "day") + (" !" if p.warnings else ""),
                      placer.around((x, p.lat_deg)), gaps=(5.0, 16.0, 30.0), leader_from=16.0,
@@ -345,12 +424,18 @@ def plot_passage(track, fixes, *, title: str = "", path=None) -> "Figure":
                      gaps=(4.0, 14.0, 28.0), color=TRACK_C, gid="track_label")
 
     n_run = sum(p.kind == "running_fix" for p in fixes)
-    keys = (["track"] if track else []) + (["fix"] if len(fixes) > n_run else []) + \
-        (["rfix"] if n_run else []) + (["warned"] if any(p.warnings for p in fixes) else []) + \
-        (["ellipse"] if any(o is not None for o in ells) else [])
+    keys = (["track"] if track else []) + (["ref"] if ref else []) + \
+        (["fix"] if len(fixes) > n_run else []) + (["rfix"] if n_run else []) + \
+        (["warned"] if any(p.warnings for p in fixes) else []) + (["ellipse"] if any(shown) else [])
     summary = [f"Distance run {run_nmi:.1f} nmi", "  (sum of the rhumb-line legs of the track)",
                f"From {when(t0, 'day')} to {when(t1, 'day')} UTC",
                f"Track points {len(track)}, fixes {len(fixes) - n_run}, running fixes {n_run}"]
+    hidden = [p.ellipse_semi_major_nmi for p, o, show in zip(fixes, ells, shown)
+              if o is not None and not show]
+    if hidden:
+        summary += ["", f"Error ellipses hidden by the fix markers at this scale are not "
+                        f"drawn ({len(hidden)} of {len(hidden) + sum(shown)}; largest semi-major "
+                        f"axis {max(hidden):.1f} nmi): see each fix's plotting sheet"]
     if fixes:
         summary += ["", "Fixes (UTC; RF running fix):"] + [
             f"{when(p.utc, 'day')} {'RF' if p.kind == 'running_fix' else 'F '} "
@@ -358,6 +443,6 @@ def plot_passage(track, fixes, *, title: str = "", path=None) -> "Figure":
     warned = [f"• {when(p.utc, 'day')}: {m}" for p in fixes for m in p.warnings]
     blocks = [(summary, SUMMARY_TEXT)] + \
         ([(["Warnings"] + warned, WARNINGS_TEXT)] if warned else [])
-    side_panel(fig, placer.renderer, keys, blocks)
+    side_panel(fig, placer.renderer, keys, blocks, {"ref": reference_label})
     _save(fig, saved, title)
     return fig

@@ -14,6 +14,9 @@ Sources, named once here and beside the checks:
     of the unknown current over its run (drift kn × hours: the current the DR cannot see);
   - the random errors' sample standard deviation lies within the 99.9 % interval of a σ = 0.5′
     sample of that size (chi-square, from memory of its tables: 0.6–1.45 σ for some 30 values).
+- The exported sights, reduced again by `nav reduce`, are checked against what nav computed
+  from the log itself: each stored fix replayed from the passage as it stood (the demo's own
+  replay, nav.passage.passage_before), so a value left out of the file or rounded away shows.
 - GPX 1.1 (topografix.com/GPX/1/1 schema) and RFC 7946 GeoJSON, from memory.
 - PNG files begin with the 8-byte signature 89 50 4E 47 0D 0A 1A 0A (PNG specification).
 """
@@ -37,15 +40,18 @@ from nav import CAUTION
 from nav.cli import main
 from nav.commands.passage_cmd import demo_paths, read_truth, replay_demo, true_position
 from nav.logbook import load_log, new_log
-from nav.passage import Passage
+from nav.passage import Passage, passage_before
 from nav.sailing import rhumb_line
 from nav.sightfile import read_sight_file, with_dr
 from nav.timekeeping import parse_utc
-from nav.units import EARTH_RADIUS_NMI
+from nav.export import COORD_DECIMALS
+from nav.units import ARCSEC_DEG, EARTH_RADIUS_NMI
 from nav.workflow import fix_from_rows, reduce_rows
 
 REPO = Path(__file__).resolve().parent.parent
 NMI = 1.0
+ARCSEC = ARCSEC_DEG
+COORD_ROUND_DEG = 0.5 * 10.0 ** -COORD_DECIMALS + 1e-6 * ARCSEC   # points keep 6 decimals
 FIX_BOUND_NMI = 1.5 * NMI
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 GPX = "{http://www.topografix.com/GPX/1/1}"
@@ -280,3 +286,118 @@ def test_export_of_the_demo_holds_every_fix(tmp_path, demo):
         for f in fixes]
     (line,) = [ft for ft in doc["features"] if ft["geometry"]["type"] == "LineString"]
     assert len(line["geometry"]["coordinates"]) == len(passage.track_points())
+
+
+# ---------------------------------------------------------------- the demo's plots show the truth
+
+def test_demo_plots_show_the_known_truth(tmp_path, monkeypatch, demo):
+    import nav.plotting as plotting
+
+    _, _, _, rows, track = demo
+    drawn = []
+    for name in ("plot_fix_sheet", "plot_passage"):
+        real = getattr(plotting, name)
+
+        def spy(*a, _real=real, _name=name, **k):
+            fig = _real(*a, **k)
+            drawn.append((_name, a, k, fig))
+            return fig
+        monkeypatch.setattr(plotting, name, spy)
+    replay_demo(tmp_path, say=lambda *_: None)
+    sheets = [d for d in drawn if d[0] == "plot_fix_sheet"]
+    (_, (pts, fixes), passage_kw, passage_fig), = [d for d in drawn if d[0] == "plot_passage"]
+    assert len(sheets) >= 8
+    for _, (fix, _lops), kw, fig in sheets:
+        lat, lon = true_position(track, fix.utc)       # the truth file, read independently
+        assert kw["known"][:2] == (lat, lon)
+        star, = [a for a in fig.findobj() if a.get_gid() == "known"]
+        assert star.get_ydata()[0] == pytest.approx(lat, abs=1e-6 * ARCSEC)
+        texts = [t.get_text() for t in fig.legends[0].get_texts()]
+        assert "known position (demo)" in texts
+    ref = passage_kw["reference_track"]
+    assert [(p.utc, p.lat_deg) for p in ref] == [(parse_utc(r["utc"]), float(r["lat_deg"]))
+                                                 for r in rows]
+    assert all(abs(p.lon_deg - float(r["lon_deg"])) <= COORD_ROUND_DEG for p, r in zip(ref, rows))
+    texts = [t.get_text() for t in passage_fig.legends[0].get_texts()]
+    assert "known track (demo)" in texts and "DR track" in texts
+    # the demo's ellipses (a few nmi) hide under the markers of a 500-nmi plot: not in the key
+    assert not any("ellipse" in t for t in texts)
+    summary = " ".join(t.get_text() for t in passage_fig.texts if t.get_gid() == "summary")
+    assert "not drawn" in summary
+
+
+# ---------------------------------------------------------------- the demo's sights exported
+
+@pytest.fixture(scope="module")
+def exported(tmp_path_factory):
+    out = tmp_path_factory.mktemp("export")
+    src = REPO / "sight_logs" / f"{NAME}.jsonl"
+    batch, table = out / "sights.csv", out / "reductions.csv"
+    assert main(["export", str(src), "--csv", str(batch)]) == 0
+    assert main(["export", str(src), "--reductions", str(table)]) == 0
+    return batch, table
+
+
+def replayed_intercepts(log, passage) -> dict:
+    """Per sight id, the intercepts nav computed for it from the log: every stored fix replayed
+    from the passage as it stood before it was logged (as nav demo and the shell's plot do)."""
+    out: dict = {}
+    for f in log.effective_entries("fix"):
+        result, used = passage_before(passage, f.id).fix_from(list(f["sight_ids"]))
+        for i, e in enumerate(used):
+            out.setdefault(e.id, []).append(float(result.reductions.intercept_nmi[i]))
+    return out
+
+
+def test_demo_sights_exported_reduce_to_the_logs_intercepts(exported, demo, capsys):
+    log, passage, *_ = demo
+    batch, table = exported
+    capsys.readouterr()
+    assert main(["reduce", str(batch), "--json"]) == 0
+    reduced = json.loads(capsys.readouterr().out)
+    assert len(reduced) == len(passage.sight_entries)
+    by_time = {(r["utc"], r["body"]): r for r in reduced}
+    with open(table, encoding="utf-8", newline="") as f:
+        rows = list(csv.DictReader(f))
+    assert [r["id"] for r in rows] == [e.id for e, _ in passage.sights()]
+    from_log = replayed_intercepts(log, passage)
+    for r in rows:
+        got = by_time[(r["utc"], r["body"])]["intercept_nmi"]
+        assert abs(got - float(r["intercept_nmi"])) < 0.01 * NMI           # file = table
+        for want in from_log.get(r["id"], []):                             # file = the log's
+            assert abs(got - want) < 0.01 * NMI, r["id"]
+    assert len(from_log) >= 0.8 * len(rows)          # nearly every sight went into a fix
+    # a sight in no stored fix: the log's reduction from the DR of the passage at its time
+    unused = [(e, row) for e, row in passage.sights() if e.id not in from_log]
+    assert unused
+    want = reduce_rows([row for _, row in unused])
+    for i, (e, _) in enumerate(unused):
+        got = by_time[(e["utc"], e["body"])]["intercept_nmi"]
+        assert abs(got - float(want.intercept_nmi[i])) < 0.01 * NMI, e.id
+
+
+def test_demo_fixes_again_from_the_exported_rows(exported, demo, tmp_path, capsys):
+    """`nav fix` on the exported rows of each stored fix (not running fixes: the batch contract
+    runs a sight on by the DR difference, the log by its legs) gives the fix logged."""
+    log, passage, *_ = demo
+    batch, _ = exported
+    with open(batch, encoding="utf-8", newline="") as f:
+        header, *cells = list(csv.reader(f))
+    key = {(c[header.index("utc")], c[header.index("body")]): c for c in cells}
+    checked = 0
+    for f in log.effective_entries("fix"):
+        if f["fix_kind"] != "fix":
+            continue
+        ids = set(f["sight_ids"])
+        sub = tmp_path / f"{f.id}.csv"
+        with open(sub, "w", encoding="utf-8", newline="") as out:
+            w = csv.writer(out)
+            w.writerow(header)
+            w.writerows(key[(e["utc"], e["body"])] for e, _ in passage.sights() if e.id in ids)
+        capsys.readouterr()
+        assert main(["fix", str(sub), "--json"]) == 0
+        fix = json.loads(capsys.readouterr().out)["fix"]
+        moved = float(rhumb_line(f["lat_deg"], f["lon_deg"], fix["lat_deg"], fix["lon_deg"])[1])
+        assert moved < 0.01 * NMI, f.id                  # the solver's tolerance, as above
+        checked += 1
+    assert checked >= 5

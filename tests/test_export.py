@@ -12,6 +12,12 @@ Sources (all from memory, named here once):
 - RFC 4180 (CSV): a header line, CRLF line ends, fields with commas/quotes/line breaks quoted.
 - Spreadsheet formula injection: cells starting with = + - @ tab or CR are run as formulas by
   common spreadsheets; a leading single quote makes them text (OWASP "CSV Injection" page).
+- Settings in a passage log: a value holds from the entry that sets it until another changes
+  it; a sight's own value overrides it (our log format's rule, common practice, no source).
+- Sight reduction (Marcq St Hilaire): LHA = GHA + longitude (east +), Hc = 90° − the arc from
+  the DR to the body's geographical position (lat = Dec, lon = −GHA), Zn = the initial azimuth
+  of that arc, intercept = Ho − Hc in minutes = nmi; the arc and azimuth from geographiclib on
+  the navigator's sphere (R = 10800/π nmi).
 Positions are invented.
 """
 
@@ -24,16 +30,25 @@ import re
 import xml.etree.ElementTree as ET
 from datetime import datetime, timedelta, timezone
 
+import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from nav import CAUTION
 from nav.errors import NavInputError
-from nav.export import (ExportPoint, fixes_to_geojson, fixes_to_gpx, neutralise_cell,
-                        points_from_log, sight_rows, sights_to_csv, SIGHT_CSV_COLUMNS)
+from geographiclib.geodesic import Geodesic
+
+from nav.angles import parse_altitude
+from nav.export import (REDUCED, REDUCTION_CSV_COLUMNS, SIGHT_CSV_COLUMNS, ExportPoint,
+                        export_sights, fixes_to_geojson, fixes_to_gpx, neutralise_cell,
+                        points_from_log, reduction_rows, sight_rows, sights_to_csv)
+from nav.fields import SIGHT_FIELDS
 from nav.logbook import load_log, new_log
-from nav.units import ARCSEC_DEG
+from nav.passage import Passage
+from nav.sightfile import parse_sight_csv
+from nav.units import ARCMIN_DEG, ARCSEC_DEG, EARTH_RADIUS_NMI
+from nav.workflow import reduce_rows
 
 NS = "{http://www.topografix.com/GPX/1/1}"
 T0 = datetime(2026, 3, 20, 18, 42, 10, tzinfo=timezone.utc)
@@ -284,5 +299,118 @@ def test_points_and_rows_from_a_passage_log(tmp_path):
     check_gpx_structure(fixes_to_gpx(fx, trk, name="Kittiwake"))
     text = sights_to_csv(sight_rows(log), SIGHT_CSV_COLUMNS)
     back = list(csv.DictReader(io.StringIO(text, newline="")))
-    assert [r["hs"] for r in back] == ["'=1+1 (typed)", "40 01.0"]
-    assert [r["revised_by"] for r in back] == ["", "e0004"]
+    # the batch file carries the Hs the reduction used: a typed Hs that is no altitude, or that
+    # reads as another value than the one logged (40 01.0 is 40.01667°, 0.1″ off), goes out as
+    # the logged decimal degrees
+    assert [r["hs"] for r in back] == ["51.2", "40.0167"]
+    assert len(parse_sight_csv(text).rows) == 2                      # nav reduce reads it
+    table = list(csv.DictReader(io.StringIO(
+        sights_to_csv(reduction_rows(log), REDUCTION_CSV_COLUMNS), newline="")))
+    assert [r["hs"] for r in table] == ["'=1+1 (typed)", "40 01.0"]  # as typed, made text
+    assert [r["revised_by"] for r in table] == ["", "e0004"]
+    assert [r["id"] for r in table] == [s1.id, s2.id]
+
+
+# ---------------------------------------------------------------- the sights of a log
+
+NMI = 1.0
+SPHERE = Geodesic(EARTH_RADIUS_NMI, 0.0)
+T1 = datetime(2026, 7, 14, 6, 0, tzinfo=timezone.utc)
+
+
+def iso(t: datetime) -> str:
+    return t.strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+@pytest.fixture(scope="module")
+def settings_log(tmp_path_factory):
+    """Invented: ketch Kittiwake off Portugal; settings changed mid-passage, one sight with its
+    own index error, one with a typed Hs that starts with a minus sign."""
+    path = tmp_path_factory.mktemp("exp") / "kittiwake-settings.jsonl"
+    h = timedelta(hours=1)
+    with new_log(path, "Kittiwake (invented)", "Settings export test (invented)") as lg:
+        lg.append_many([
+            {"kind": "setting", "index_error": "+1.5", "index_error_arcmin": 1.5,
+             "eye_height": "3.2", "eye_height_m": 3.2, "temperature": "24",
+             "temperature_c": 24.0, "pressure": "1018", "pressure_hpa": 1018.0},
+            {"kind": "dr", "utc": iso(T1), "lat": "38 41.0 N", "lat_deg": 38 + 41 / 60,
+             "lon": "011 02.0 W", "lon_deg": -(11 + 2 / 60), "course": "215", "course_deg": 215.0,
+             "speed": "6.2", "speed_kn": 6.2},
+            {"kind": "sight", "body": "Sun", "utc": iso(T1 + 3 * h), "time_source": "utc",
+             "hs": "52 14.6", "hs_deg": 52 + 14.6 / 60, "limb": "lower"},
+            {"kind": "setting", "eye_height": "2.0", "eye_height_m": 2.0, "horizon": "sea"},
+            {"kind": "sight", "body": "Sun", "utc": iso(T1 + 6 * h), "time_source": "utc",
+             "hs": "62 40.3", "hs_deg": 62 + 40.3 / 60, "limb": "upper",
+             "index_error": "-0.5", "index_error_arcmin": -0.5},
+            {"kind": "sight", "body": "Moon", "utc": iso(T1 + 6 * h + timedelta(minutes=4)),
+             "time_source": "utc", "hs": "-0 20.0", "hs_deg": -20.0 / 60, "limb": "lower",
+             "note": "-test: a low Moon, typed with a minus"}])
+    return load_log(path)
+
+
+def test_batch_file_carries_the_values_each_reduction_used(settings_log):
+    log = settings_log
+    text = sights_to_csv(sight_rows(log), SIGHT_CSV_COLUMNS)
+    header, *cells = list(csv.reader(io.StringIO(text, newline="")))
+    assert tuple(header) == tuple(f.name for f in SIGHT_FIELDS)     # the batch contract
+    for row in cells:                     # none of the values the reduction used is left out
+        for name in ("limb", "index_error", "eye_height_m", "temperature_c", "pressure_hpa",
+                     "horizon", "dr_lat", "dr_lon"):
+            assert row[header.index(name)] != "", name
+    back = parse_sight_csv(text)
+    assert not back.errors and len(back.rows) == 3
+    # the settings in force (our log format's rule): as set, changed, and overridden
+    assert [r.index_error_arcmin for r in back.rows] == [1.5, -0.5, 1.5]
+    assert [r.eye_height_m for r in back.rows] == [3.2, 2.0, 2.0]
+    assert [(r.temperature_c, r.pressure_hpa, r.horizon) for r in back.rows] == \
+        [(24.0, 1018.0, "sea")] * 3
+    assert [r.limb for r in back.rows] == ["lower", "upper", "lower"]
+    # the DR of the passage at each sight's time, to the last bit
+    passage = Passage(log)
+    used = [r for _, r in passage.sights()]
+    for got, want in zip(back.rows, used):
+        assert (got.dr_lat_deg, got.dr_lon_deg, got.utc) == (want.dr_lat_deg, want.dr_lon_deg,
+                                                             want.utc)
+        assert got.hs_deg == pytest.approx(want.hs_deg, abs=1e-9 * ARCSEC_DEG)
+    assert back.rows[2].hs_text == "\u22120 20.0"                     # minus sign, not a quote
+    assert parse_altitude(back.rows[2].hs_text) == -20.0 / 60
+    assert back.rows[2].note == "'-test: a low Moon, typed with a minus"   # a note keeps it
+    # and so nav reduce on the file gives the intercepts nav gives from the log
+    a, b = reduce_rows(back.rows), reduce_rows(used)
+    assert np.all(np.abs(a.intercept_nmi - b.intercept_nmi) < 0.01 * NMI)
+
+
+def test_reductions_table_holds_the_reduced_values(settings_log):
+    out = export_sights(settings_log)
+    assert out.notes == ()
+    text = sights_to_csv(out.reductions, REDUCTION_CSV_COLUMNS)
+    table = list(csv.DictReader(io.StringIO(text, newline="")))
+    assert all(c.endswith(("_deg", "_nmi")) for c in REDUCED)        # units in the names
+    assert [r["hs"] for r in table] == ["52 14.6", "62 40.3", "'-0 20.0"]   # typed, made text
+    assert [r["index_error_arcmin"] for r in table] == ["1.5", "-0.5", "1.5"]
+    for r in table:
+        lat, lon = float(r["dr_lat_deg"]), float(r["dr_lon_deg"])
+        gha, dec = float(r["gha_deg"]), float(r["dec_deg"])
+        lha = (gha + lon) % 360.0                                      # LHA = GHA + lon (E +)
+        d = (float(r["lha_deg"]) - lha + 180.0) % 360.0 - 180.0
+        assert abs(d) < 0.001 * ARCSEC_DEG
+        g = SPHERE.Inverse(lat, lon, dec, -gha)                        # geographiclib
+        assert abs(float(r["hc_deg"]) - (90.0 - g["a12"])) < 0.001 * ARCSEC_DEG
+        dz = (float(r["zn_deg"]) - g["azi1"] % 360.0 + 180.0) % 360.0 - 180.0
+        assert abs(dz) < 0.001 * ARCSEC_DEG
+        intercept = (float(r["ho_deg"]) - float(r["hc_deg"])) / ARCMIN_DEG    # 1′ = 1 nmi
+        assert abs(float(r["intercept_nmi"]) - intercept) < 1e-4 * NMI
+        assert r["dr_basis"].startswith("DR ") and r["id"].startswith("e")
+    assert "altitude" in table[2]["warnings"].lower()                # the low Moon is warned
+
+
+def test_a_sight_without_a_dr_is_exported_blank_and_said(tmp_path):
+    path = tmp_path / "no-dr.jsonl"
+    with new_log(path, "Kittiwake (invented)", "No DR (invented)") as lg:
+        s = lg.append({"kind": "sight", "body": "Vega", "utc": iso(T1), "time_source": "utc",
+                       "hs": "33 19.7", "hs_deg": 33 + 19.7 / 60})
+    out = export_sights(load_log(path))
+    assert len(out.notes) == 1 and s.id in out.notes[0] and "DR" in out.notes[0]
+    assert "dr_lat" not in out.rows[0] and "ho_deg" not in out.reductions[0]
+    back = parse_sight_csv(sights_to_csv(out.rows, SIGHT_CSV_COLUMNS))
+    assert [e.field for e in back.errors] == ["dr_lat"]               # refused, not guessed

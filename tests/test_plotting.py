@@ -11,6 +11,13 @@ References:
 - Distance run = speed × time on each leg of a dead-reckoning track: common practice, no source.
 - PNG and PDF signatures: the PNG specification (ISO/IEC 15948, 8 bytes 89 50 4E 47 0D 0A 1A 0A)
   and the PDF specification (ISO 32000, a file begins "%PDF-"), both from memory.
+- The distance and bearing of a fix from a known position: geographiclib's geodesic on the
+  navigator's sphere (over a few miles a rhumb line and the geodesic differ by far less than the
+  0.01 nmi and 1° the sheet prints).
+- An error ellipse is drawn on the passage plot only where it reaches 2 px beyond the ring of
+  its fix's marker: our own rule for a legible plot (common practice, no source).
+- A current adds its set and drift to the DR as a velocity vector (the American Practical
+  Navigator, "current sailing", from memory): the invented reference tracks below.
 """
 
 from __future__ import annotations
@@ -30,7 +37,7 @@ from hypothesis import strategies as st
 from nav import CAUTION, almanac
 from nav.angles import parse_lat, parse_lon
 from nav.errors import NavInputError
-from nav.export import ExportPoint
+from nav.export import COORD_DECIMALS, ExportPoint
 from nav.fix import Sight, lop_at, solve_fix
 from nav.reduction import assumed_position
 from nav.sailing import advance_position, dr_position
@@ -434,3 +441,227 @@ def test_passage_markers_differ_for_fix_and_running_fix(passages):
                                           fig.legends[0].legend_handles)}
     assert key["fix"].get_marker() != key["running fix"].get_marker()
     assert "DR track" in key
+
+
+# ---------------------------------------------------------------- what is known: a true position
+
+def marker_px(fig, line):
+    """Display position of a one-point marker line."""
+    return fig.axes[0].transData.transform((line.get_xdata()[0], line.get_ydata()[0]))
+
+
+def key_handles(fig):
+    return {t.get_text(): h for t, h in zip(fig.legends[0].get_texts(),
+                                            fig.legends[0].legend_handles)}
+
+
+@pytest.fixture(scope="module")
+def known_sheets():
+    from nav.plotting import plot_fix_sheet
+
+    out = {}
+    for name, c in cases().items():
+        fig = plot_fix_sheet(c["fix"], c["lops"], dr=(*c["dr"], c["fix"].utc), known=c["truth"],
+                             title=name)
+        fig.canvas.draw()
+        out[name] = (c, c["truth"], fig)
+    c = cases()["a flagged sight"]           # a known position 9′ north of the truth, 6′ west
+    far = ExportPoint(c["fix"].utc, c["truth"][0] + 9 * ARCMIN, c["truth"][1] - 6 * ARCMIN,
+                      "gps", "")
+    fig = plot_fix_sheet(c["fix"], c["lops"], dr=c["dr"], known=far,
+                         known_label="position by GPS (invented)", title="far")
+    fig.canvas.draw()
+    out["far"] = (c, (far.lat_deg, far.lon_deg), fig)
+    return out
+
+
+@pytest.mark.parametrize("name", list(cases()) + ["far"])
+def test_sheet_marks_the_known_position_apart_from_everything_else(known_sheets, name):
+    c, (lat, lon), fig = known_sheets[name]
+    ax = fig.axes[0]
+    star, = by_gid(fig, "known")
+    assert star.get_marker() == "*"
+    x, y = star.get_xdata()[0], star.get_ydata()[0]
+    assert y == pytest.approx(lat, abs=EXACT)
+    assert (x - lon + 180.0) % 360.0 - 180.0 == pytest.approx(0.0, abs=EXACT)   # unwrapped
+    assert ax.get_xlim()[0] < x < ax.get_xlim()[1] and ax.get_ylim()[0] < y < ax.get_ylim()[1]
+    label = "position by GPS (invented)" if name == "far" else "known position"
+    key = key_handles(fig)
+    assert key[label].get_marker() == "*"
+    others = [key[k] for k in ("DR", "AP (assumed position)",
+                               "Running fix" if c["fix"].kind == "running fix" else "Fix")]
+    for h in others:                                # no other mark of the sheet looks like it
+        assert h.get_marker() != "*"
+        assert h.get_markerfacecolor() != key[label].get_markerfacecolor()
+    check_texts(fig)                                # labels still never overlap
+    px, py = marker_px(fig, star)
+    r = fig.canvas.get_renderer()
+    for t in all_texts(fig):                        # and none covers the star
+        b = t.get_window_extent(r)
+        assert not (b.x0 - 6 < px < b.x1 + 6 and b.y0 - 6 < py < b.y1 + 6), t.get_text()
+    for leader in by_gid(fig, "leader"):     # nor does a label's leader cross it, unless the
+        a, b = ax.transData.transform(np.column_stack([leader.get_xdata(), leader.get_ydata()]))
+        if np.hypot(*((px, py) - a)) < 12.0:     # star sits on the mark the leader starts at
+            continue
+        t = np.clip(np.dot((px, py) - a, b - a) / max(np.dot(b - a, b - a), 1e-12), 0.0, 1.0)
+        assert np.hypot(*((px, py) - (a + t * (b - a)))) > 6.0
+
+
+@pytest.mark.parametrize("name", list(cases()) + ["far"])
+def test_sheet_summary_gives_the_fix_against_the_known_position(known_sheets, name):
+    c, (lat, lon), fig = known_sheets[name]
+    f = c["fix"]
+    text = " ".join(t.get_text() for t in by_gid(fig, "summary"))
+    lines = text.split("\n")
+    head = next(i for i, s in enumerate(lines) if s.endswith(":") and "position" in s)
+    lat_text, lon_text = lines[head + 1].split("   ")
+    assert abs(parse_lat(lat_text.strip()) - lat) <= 0.051 * ARCMIN           # 0.1′ printed
+    dlon = (parse_lon(lon_text.strip()) - lon + 180.0) % 360.0 - 180.0
+    assert abs(dlon) <= 0.051 * ARCMIN
+    g = SPHERE.Inverse(lat, lon, f.lat_deg, f.lon_deg)            # geographiclib, from memory
+    assert lines[head + 2].strip().startswith(f"the {f.kind} lies ")
+    words = lines[head + 2].split()
+    dist = float(words[words.index("nmi") - 1])
+    assert abs(dist - g["s12"]) <= 0.005 * NMI + 1e-4 * NMI                   # 2 decimals
+    if g["s12"] > 0.05 * NMI:
+        brg = float(words[words.index("nmi") + 1].rstrip("°"))
+        assert abs((brg - g["azi1"] % 360.0 + 180.0) % 360.0 - 180.0) <= 1.0  # whole degrees
+    if name in ("two LOPs", "across 180°"):          # noise-free sights: the fix is the truth
+        assert dist == 0.0
+
+
+def test_fix_label_keeps_off_the_direction_of_a_known_position_nearby():
+    # the fix label and its leader must not head for the star, or they read as its label
+    from nav.plot_layout import Placer, Sheet, new_chart
+    from nav.plotting import _away_from
+
+    sheet = Sheet(-8.7, math.cos(math.radians(47.5)))
+    fig, ax, _ = new_chart(sheet, (-8.8, -8.6), (47.45, 47.55), "t", "s")
+    fix = (-8.7, 47.5)
+    cands = Placer.around(fix)
+    px, py = ax.transData.transform(fix)
+
+    def mark(dist_px, bearing_deg):          # a point at a screen angle (0 = east, 90 = north)
+        a = math.radians(bearing_deg)
+        return tuple(ax.transData.inverted().transform((px + dist_px * math.cos(a),
+                                                        py + dist_px * math.sin(a))))
+    kept = _away_from(ax, cands, mark(20.0, 135.0))              # north-west, close
+    assert [d for _, d in kept] == [d for _, d in cands if d != (-1, 1)]
+    kept = _away_from(ax, cands, mark(20.0, 22.5))               # between east and north-east
+    assert {d for _, d in kept} == {d for _, d in cands} - {(1, 0), (1, 1)}
+    assert _away_from(ax, cands, mark(400.0, 135.0)) == cands    # far off: no matter
+    assert _away_from(ax, cands, None) == cands
+
+
+def test_known_position_bad_inputs_name_their_field():
+    from nav.plotting import plot_fix_sheet
+
+    c = cases()["two LOPs"]
+    for known, field in [((95.0, 0.0), "known.lat_deg"), ((1.0, 2.0, c["fix"].utc, 4), "known"),
+                         ({"lat_deg": 1.0, "lon_deg": 2.0, "utc": c["fix"].utc, "colour": "red"},
+                          "known")]:
+        with pytest.raises(NavInputError) as exc:
+            plot_fix_sheet(c["fix"], c["lops"], known=known)
+        assert exc.value.field == field
+
+
+def test_plotting_holds_no_demo_wording():
+    # generic code: what a caller's data is called comes from the caller (the brief)
+    for name in ("plotting.py", "plot_layout.py"):
+        assert "demo" not in (REPO / "nav" / name).read_text(encoding="utf-8").lower()
+
+
+# ---------------------------------------------------------------- a reference track
+
+def set_by_current(track, set_deg, drift_kn):
+    """Each DR point moved by the current since the first (set and drift, invented)."""
+    t0 = track[0].utc
+    return [ExportPoint(p.utc, *(float(v) for v in dr_position(
+        p.lat_deg, p.lon_deg, set_deg, drift_kn, (p.utc - t0).total_seconds() / 3600.0)),
+        "other", "") for p in track]
+
+
+@pytest.fixture(scope="module")
+def referenced(passages):
+    from nav.plotting import plot_passage
+
+    out = {}
+    for name, (legs, track, fixes, _) in passages.items():
+        ref = set_by_current(track, 160.0, 0.6)
+        fig = plot_passage(track, fixes, reference_track=ref,
+                           reference_label="true track (invented)", title=name)
+        fig.canvas.draw()
+        out[name] = (track, ref, fig)
+    return out
+
+
+@pytest.mark.parametrize("name", ["Biscay", "across 180°"])
+def test_passage_draws_the_reference_track_in_its_own_style(referenced, name):
+    track, ref, fig = referenced[name]
+    ax = fig.axes[0]
+    line, = by_gid(fig, "reference_track")
+    dr_line, = by_gid(fig, "track")
+    xs, ys = np.asarray(line.get_xdata()), np.asarray(line.get_ydata())
+    assert len(xs) == len(ref)
+    assert np.allclose(ys, [p.lat_deg for p in ref], atol=EXACT, rtol=0.0)
+    d = (xs - np.array([p.lon_deg for p in ref]) + 180.0) % 360.0 - 180.0
+    assert np.all(np.abs(d) <= 0.5 * 10.0 ** -COORD_DECIMALS + EXACT)   # points keep 6 decimals
+    assert np.all(np.abs(np.diff(xs)) < 60 * ARCMIN)       # continuous, across 180° too
+    lo, hi = ax.get_xlim()
+    assert lo < xs.min() and xs.max() < hi
+    assert ax.get_ylim()[0] < ys.min() and ys.max() < ax.get_ylim()[1]
+    assert line.get_linestyle() != "-" and line.get_marker() in ("None", "", None)
+    assert line.get_linewidth() < dr_line.get_linewidth()
+    assert line.get_color() != dr_line.get_color()
+    key = key_handles(fig)
+    assert key["true track (invented)"].get_linestyle() == line.get_linestyle()
+    assert "DR track" in key
+    check_texts(fig)
+
+
+# ---------------------------------------------------------------- ellipses at passage scale
+
+def ring_px(fig):
+    """Radius (px) of the passage plot's fix markers: the open circles and triangles."""
+    sizes = {ln.get_markersize() for ln in fig.axes[0].get_lines()
+             if ln.get_marker() in ("o", "^") and ln.get_markerfacecolor() == "none"}
+    assert len(sizes) == 1
+    return 0.5 * sizes.pop() * fig.dpi / 72.0
+
+
+def px_per_nmi(fig):
+    ax = fig.axes[0]
+    y0 = ax.get_ylim()[0]
+    a, b = ax.transData.transform([(ax.get_xlim()[0], y0), (ax.get_xlim()[0], y0 + ARCMIN)])
+    return b[1] - a[1]                                 # 1′ of latitude = 1 nmi
+
+
+def test_passage_leaves_out_ellipses_hidden_under_their_markers(passages):
+    legs, track, fixes, fig = passages["Biscay"]
+    a_nmi = fixes[0].ellipse_semi_major_nmi
+    assert a_nmi * px_per_nmi(fig) < ring_px(fig) + 2.0          # under the marker's ring
+    assert by_gid(fig, "ellipse") == []
+    assert not any("ellipse" in t for t in key_handles(fig))
+    summary = " ".join(" ".join(t.get_text().split()) for t in by_gid(fig, "summary"))
+    assert f"not drawn (1 of 1; largest semi-major axis {a_nmi:.1f} nmi)" in summary
+
+
+def test_passage_draws_an_ellipse_that_shows_and_names_it_in_the_key():
+    from nav.plotting import plot_passage
+
+    start = T(2026, 6, 3, 6, 0, tzinfo=UTC)          # a short run: 6 nmi in 2 h (invented)
+    track = passage_track(44.0, -9.0, start, [(90.0, 3.0, 6)])
+    fix = ExportPoint(track[1].utc, track[1].lat_deg - 0.01, track[1].lon_deg, "fix", "",
+                      2.0, 0.8, 40.0)
+    fig = plot_passage(track, [fix])
+    fig.canvas.draw()
+    patch, = by_gid(fig, "ellipse")
+    assert 2.0 * px_per_nmi(fig) >= ring_px(fig) + 2.0
+    ax = fig.axes[0]
+    centre = ax.transData.transform((fix.lon_deg, fix.lat_deg))
+    outline = ax.transData.transform(patch.get_xy())
+    assert np.max(np.hypot(*(outline - centre).T)) > ring_px(fig) + 2.0   # it shows
+    assert "error ellipse" in key_handles(fig)
+    summary = " ".join(t.get_text() for t in by_gid(fig, "summary"))
+    assert "not drawn" not in summary
+    check_texts(fig)

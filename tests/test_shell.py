@@ -603,7 +603,8 @@ def test_export_writes_files_and_never_overwrites(state, tmp_path):
     out = run_lines(state, f"export gpx {gpx}", f"export geojson {gj}", f"export csv {csv}")
     assert gpx.read_text().startswith('<?xml version="1.0" encoding="UTF-8"?>')
     assert '"type": "FeatureCollection"' in gj.read_text()
-    assert csv.read_text().splitlines()[0].startswith("id,body,utc")
+    from nav.export import SIGHT_CSV_COLUMNS
+    assert csv.read_text().splitlines()[0] == ",".join(SIGHT_CSV_COLUMNS)  # the batch contract
     assert len(csv.read_text().splitlines()) == 4                     # header + three sights
     before = gpx.read_text()
     out = run_lines(state, f"export gpx {gpx}")

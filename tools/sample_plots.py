@@ -5,7 +5,9 @@
 Every scenario is invented (vessels, passages, sight errors): the sights are synthesised at a
 chosen "true" position from nav.almanac's GHA and Dec (Ho = Hc there, plus a small invented
 error), reduced from the tables' assumed positions near a DR that is some miles out, and solved
-with nav.fix.solve_fix. Nothing here is an observation. Writes only into the folder given.
+with nav.fix.solve_fix. Each sheet also marks that "true" position (the ``known`` argument), and
+the passage plot an invented "true" track set by a current (``reference_track``). Nothing here
+is an observation. Writes only into the folder given.
 """
 
 from __future__ import annotations
@@ -56,38 +58,41 @@ def scenarios():
     f = t(2026, 5, 14, 5, 40, tzinfo=UTC)
     out["two_star_fix"] = (synth((38.69, -27.83), (38.78, -27.62), f,
                                  [("Schedar", f, 0.4), ("Altair", f - timedelta(minutes=4), -0.3)]),
-                           (38.78, -27.62), "Marram Wren: two-star fix at dawn")
+                           (38.78, -27.62), (38.69, -27.83), "Marram Wren: two-star fix at dawn")
     # Ketch "Halcyon Drift", Sun-run-Sun with a third Sun line at noon, 6.5 kn on 215°.
     f = t(2026, 6, 2, 13, 0, tzinfo=UTC)
     out["running_fix"] = (synth((44.21, -14.33), (44.30, -14.05), f,
                                 [("Sun", t(2026, 6, 2, 9, 10, tzinfo=UTC), 0.5),
                                  ("Sun", t(2026, 6, 2, 11, 20, tzinfo=UTC), -0.4),
                                  ("Sun", f, 0.2)], course_deg=215.0, speed_kn=6.5),
-                          (44.30, -14.05), "Halcyon Drift: running fix, Sun-run-Sun")
+                          (44.30, -14.05), (44.21, -14.33),
+                          "Halcyon Drift: running fix, Sun-run-Sun")
     # Sloop "Petrel Nine", evening stars, one sight misread by 9′.
     f = t(2026, 9, 21, 19, 20, tzinfo=UTC)
     out["flagged_sight"] = (synth((47.52, -8.71), (47.45, -8.95), f,
                                   [("Polaris", f, 0.3), ("Alpheratz", f, -0.5),
                                    ("Enif", f, 9.0), ("Altair", f, 0.2), ("Arcturus", f, -0.6),
                                    ("Alkaid", f, 0.4)]),
-                            (47.45, -8.95), "Petrel Nine: six stars, one doubtful")
+                            (47.45, -8.95), (47.52, -8.71), "Petrel Nine: six stars, one doubtful")
     # Schooner "Tui Lantern", across the 180th meridian in the southern tropics.
     f = t(2026, 8, 9, 7, 15, tzinfo=UTC)
     out["dateline"] = (synth((-16.87, 179.93), (-16.76, -179.82), f,
                              [("Rasalhague", f, 0.4), ("Nunki", f, -0.2),
                               ("Rigil Kentaurus", f, 0.6), ("Spica", f, -0.5)]),
-                       (-16.76, -179.82), "Tui Lantern: star fix across 180°")
+                       (-16.76, -179.82), (-16.87, 179.93), "Tui Lantern: star fix across 180°")
     # Yawl "Southern Kelp", Tasman Sea, three stars reduced from the DR itself.
     f = t(2026, 11, 3, 9, 50, tzinfo=UTC)
     out["south_from_dr"] = (synth((-38.42, 160.61), (-38.33, 160.47), f,
                                   [("Diphda", f, 0.3), ("Achernar", f, -0.4),
                                    ("Peacock", f, 0.5)], from_dr=True),
-                            (-38.33, 160.47), "Southern Kelp: three stars from the DR")
+                            (-38.33, 160.47), (-38.42, 160.61),
+                            "Southern Kelp: three stars from the DR")
     return out
 
 
 def passage():
-    """Ketch "Halcyon Drift" over a day and a half: a DR track with two course changes."""
+    """Ketch "Halcyon Drift" over a day and a half: a DR track with two course changes, and an
+    invented "true" track: the DR set 160° by a 0.4 kn current the DR does not know."""
     start = datetime(2026, 6, 1, 18, 0, tzinfo=UTC)
     legs = [(230.0, 6.0, 9), (215.0, 6.5, 14), (250.0, 5.5, 12)]     # course, speed, hours
     pos, t = (45.10, -12.60), start
@@ -104,7 +109,10 @@ def passage():
                                  p.lon_deg + 0.07 * i, kind, "", 2.0 + i, 0.8, 40.0 + 30 * i,
                                  ("only two LOPs: there is no check on a bad sight",)
                                  if i == 2 else ()))
-    return track, fixes
+    truth = [ExportPoint(p.utc, *(float(v) for v in dr_position(
+        p.lat_deg, p.lon_deg, 160.0, 0.4, (p.utc - start).total_seconds() / 3600.0)), "other", "")
+        for p in track]
+    return track, fixes, truth
 
 
 def main(argv=None) -> int:
@@ -115,9 +123,10 @@ def main(argv=None) -> int:
 
     args.folder.mkdir(parents=True, exist_ok=True)
     written = []
-    for name, ((fix, lops), dr, title) in scenarios().items():
+    for name, ((fix, lops), dr, truth, title) in scenarios().items():
         p = args.folder / f"sheet_{name}.png"
-        plot_fix_sheet(fix, lops, dr=(*dr, fix.utc), title=title, path=p)
+        plot_fix_sheet(fix, lops, dr=(*dr, fix.utc), known=truth,
+                       known_label="known position (invented)", title=title, path=p)
         written.append(p)
     fix, lops = synth((38.69, -27.83), (38.78, -27.62), datetime(2026, 5, 14, 5, 40, tzinfo=UTC),
                       [("Schedar", datetime(2026, 5, 14, 5, 40, tzinfo=UTC), 0.4),
@@ -125,9 +134,11 @@ def main(argv=None) -> int:
     p = args.folder / "sheet_two_star_fix.pdf"
     plot_fix_sheet(fix, lops, dr=(38.78, -27.62), path=p)
     written.append(p)
-    track, fixes = passage()
+    track, fixes, truth = passage()
     p = args.folder / "passage.png"
-    plot_passage(track, fixes, title="Halcyon Drift: Biscay to the west, June 2026", path=p)
+    plot_passage(track, fixes, reference_track=truth,
+                 reference_label="true track (invented current)",
+                 title="Halcyon Drift: Biscay to the west, June 2026", path=p)
     written.append(p)
     for p in written:
         print(p)

@@ -3,8 +3,11 @@
 - ``nav demo [--out DIR]`` replays the invented demo passage shipped in ``nav/data/demo/`` (made
   by ``tools/make_demo_passage.py``): every stored fix is computed again from its sights, compared
   with the known true track, drawn on a plotting sheet; then the passage plot.
-- ``nav export LOG --gpx FILE | --geojson FILE | --csv FILE``: fixes and the DR track as GPX 1.1
-  or GeoJSON, the sights as CSV (cells that could start a spreadsheet formula neutralised).
+- ``nav export LOG --gpx FILE | --geojson FILE | --csv FILE | --reductions FILE``: fixes and the
+  DR track as GPX 1.1 or GeoJSON; the sights as a batch CSV file (the columns ``nav reduce`` and
+  ``nav fix`` read, with the settings and DR each reduction used filled in), or as a CSV table
+  of their reductions (Ho, GHA, Dec, LHA, Hc, Zn, intercept). Cells that could start a
+  spreadsheet formula are neutralised (see :mod:`nav.export`).
 - ``nav import SIGHTS.csv --log LOG [--new --vessel NAME --title TITLE]``: the sights of a batch
   file (the contract of ``nav reduce`` and ``nav fix``) appended to a passage log in one batch.
 
@@ -28,6 +31,8 @@ from ..errors import NavInputError
 
 DEMO_NAME = "demo-azores-madeira"
 DEMO_OUT = "demo_output"
+KNOWN_LABEL = "known position (demo)"     # the demo's truth, as its plots name it
+TRACK_LABEL = "known track (demo)"
 
 
 def register(sub) -> None:
@@ -43,14 +48,21 @@ def register(sub) -> None:
 
     e = sub.add_parser(
         "export", help="fixes and track as GPX or GeoJSON, sights as CSV",
-        description="Export a passage log: its fixes and DR track as GPX 1.1 or GeoJSON, or its "
-                    "sights as CSV (decimal degrees; cells that could start a spreadsheet "
-                    "formula are made text). FILE '-' writes to standard output.")
+        description="Export a passage log: its fixes and DR track as GPX 1.1 or GeoJSON; its "
+                    "sights as a batch CSV file that nav reduce, nav fix and nav import read "
+                    "back (each sight with the index error, height of eye, weather, horizon and "
+                    "DR its reduction used), or as a CSV table of their reductions. Decimal "
+                    "degrees; cells that could start a spreadsheet formula are made text. "
+                    "FILE '-' writes to standard output.")
     e.add_argument("log", metavar="LOG", help="the passage log (.jsonl)")
     fmt = e.add_mutually_exclusive_group(required=True)
     fmt.add_argument("--gpx", metavar="FILE", help="fixes as waypoints, the DR track as a track")
     fmt.add_argument("--geojson", metavar="FILE", help="fixes as Points, the DR track as a line")
-    fmt.add_argument("--csv", metavar="FILE", help="the sights, one row each")
+    fmt.add_argument("--csv", metavar="FILE",
+                     help="the sights as a batch file (the columns of nav reduce and nav fix)")
+    fmt.add_argument("--reductions", metavar="FILE",
+                     help="the sights with their reductions: Ho, GHA, Dec, LHA, Hc, Zn, "
+                          "intercept (an output table, not a batch file)")
     e.set_defaults(func=run_export)
 
     i = sub.add_parser(
@@ -240,6 +252,7 @@ def replay_demo(out_dir: Path, say=print) -> list[DemoFix]:
                 "legs; the unknown current over that run is an error the ellipse cannot show")
         sheet = out_dir / f"fix-{k:02d}-{f.utc:%m%d}-{format_hm(f.utc).replace(':', '')}.png"
         plot_fix_sheet(f, result.lops, dr=(dr.lat_deg, dr.lon_deg, f.utc),
+                       known=(t_lat, t_lon, f.utc), known_label=KNOWN_LABEL,
                        title=f"{short} (invented demo): {f.kind} {f.utc:%d %b %Y} "
                              f"{format_hm(f.utc)} UTC ({e.id}" + (", struck)" if e.id in struck
                                                                   else ")"), path=sheet)
@@ -252,8 +265,10 @@ def replay_demo(out_dir: Path, say=print) -> list[DemoFix]:
     pts = [ExportPoint(t, lat, lon, basis.replace(" ", "_"), "")
            for t, lat, lon, basis in passage.track_points()]
     plot_path = out_dir / "passage.png"
-    plot_passage(pts, replayed, title=f"{short} (invented demo): Azores to Madeira, DR track "
-                                      "and fixes", path=plot_path)
+    truth = [ExportPoint(p.utc, p.lat_deg, p.lon_deg, "other", "") for p in track]
+    plot_passage(pts, replayed, reference_track=truth, reference_label=TRACK_LABEL,
+                 title=f"{short} (invented demo): Azores to Madeira, DR track, fixes and the "
+                       "known track", path=plot_path)
     say("")
     say("Fixes against the known track")
     say(f"  {'#':>2}  {'UTC':<16} {'kind':<12} {'sights':>6}  {'error':>9}  {'95% ellipse':<11}"
@@ -314,10 +329,18 @@ def run_export(args) -> int:
 
     log = load_log(args.log)
     name = log.header["title"]
-    if args.csv:
-        rows = ex.sight_rows(log)
-        text, target = ex.sights_to_csv(rows, ex.SIGHT_CSV_COLUMNS), args.csv
-        what = f"{len(rows)} sight(s) as CSV"
+    sights = args.csv or args.reductions
+    if sights:
+        out = ex.export_sights(log)
+        for note in out.notes:
+            print(f"nav export: note: {note}", file=sys.stderr)
+        if args.csv:
+            text = ex.sights_to_csv(out.rows, ex.SIGHT_CSV_COLUMNS)
+            what = f"{len(out.rows)} sight(s) as a batch CSV file"
+        else:
+            text = ex.sights_to_csv(out.reductions, ex.REDUCTION_CSV_COLUMNS)
+            what = f"{len(out.reductions)} sight(s) with their reductions as CSV"
+        target = sights
     else:
         fixes, _ = ex.points_from_log(log)
         track = [ex.ExportPoint(t, lat, lon, basis.replace(" ", "_"), "")
@@ -331,7 +354,7 @@ def run_export(args) -> int:
         what = f"{len(fixes)} fix(es) and a DR track of {len(track)} point(s) as {fmt}"
     where = _write_text(target, text, Path(args.log))
     print(f"nav export: wrote {what} to {where}", file=sys.stderr if target == "-" else sys.stdout)
-    if target != "-" and not args.csv:
+    if target != "-":                  # every export holds positions (the CSV files: the DRs)
         print(CAUTION)
     return 0
 

@@ -145,11 +145,7 @@ def reduction_report(st, e) -> list[str]:
     from ..render import reduction_lines, sight_title
     from ..workflow import reduce_rows
 
-    from ..passage import passage_for_sight
-
-    passage = st.passage
-    if any(e.id in f["sight_ids"] for f in passage.fix_entries):
-        passage = passage_for_sight(st.log, e.id)
+    passage = st.passage.reduction_view(e)
     row = passage.sight_row(e)
     red = reduce_rows([row]).sight(0)
     if row.dr_given:
