@@ -186,3 +186,273 @@ def almanac_lines(results, t) -> list[str]:
 
 def caution_line() -> str:
     return CAUTION
+
+
+# ---------------------------------------------------------------- noon, meridian latitude, Polaris
+
+MINUS = "\u2212"
+
+
+def _second(t):
+    """An instant (aware or naive) rounded to the whole second, for HH:MM:SS."""
+    from datetime import timedelta
+
+    return (t + timedelta(microseconds=500_000)).replace(microsecond=0)
+
+
+def _clock(hours: float) -> str:
+    """Hours of the day (any real) -> ``HH:MM:SS`` (rounded, modulo 24 h)."""
+    s = int(round(float(hours) * 3600.0)) % 86_400
+    return f"{s // 3600:02d}:{s % 3600 // 60:02d}:{s % 60:02d}"
+
+
+def _span(hours: float) -> str:
+    s = int(round(abs(float(hours)) * 3600.0))
+    return f"{s // 3600} h {s % 3600 // 60:02d} min {s % 60:02d} s"
+
+
+def eot_text(eot_min: float) -> str:
+    """The equation of time (apparent − mean), ``−1.4 min`` or ``+16.4 min``."""
+    v = round(float(eot_min), 1)
+    return f"{MINUS if v < 0 else '+'}{abs(v):.1f} min"
+
+
+def _rows(rows) -> list[str]:
+    width = max(26, max(len(v) for _, v, _ in rows) + 2)
+    return [f"  {k:<13}{v:<{width}}{note}".rstrip() for k, v, note in rows]
+
+
+def _instrument_text(eye_height_m, index_error_arcmin, temperature_c, pressure_hpa, horizon):
+    where = f"eye {eye_height_m:.1f} m" if horizon == "sea" else f"{horizon} horizon"
+    return (f"{where}, IE {format_arcmin(index_error_arcmin)}, {temperature_c:g} \u00b0C, "
+            f"{pressure_hpa:g} hPa")
+
+
+def _watch_text(seconds: float) -> str:
+    if not seconds:
+        return "error none"
+    return f"{abs(seconds):g} s {'fast' if seconds > 0 else 'slow'}"
+
+
+def noon_lines(p) -> list[str]:
+    """A :class:`nav.noonsight.NoonPrediction` in navigator notation."""
+    n = p.noon
+    utc = _second(n.utc)
+    rows = [("UTC", f"{utc:%H:%M:%S}", f"{utc:%Y-%m-%d}")]
+    if n.zone_time is not None:
+        zt = _second(n.zone_time)
+        zd_h = n.zone_description.total_seconds() / 3600.0
+        rows.append(("zone time", f"{zt:%H:%M:%S}",
+                     f"ZD {zd_h:+g} h, UTC = ZT + ZD ({zt:%Y-%m-%d})"))
+    if p.watch_reading is not None:
+        rows.append(("watch", f"{_second(p.watch_reading):%H:%M:%S}",
+                     f"the watch reading to expect (watch {_watch_text(p.watch_error_s)})"))
+    rows.append(("DR at noon", f"{format_lat(n.lat_deg)}  {format_lon(n.lon_deg)}", p.basis))
+    if p.course_deg is not None and p.speed_kn:
+        rows.append(("course", f"{p.course_deg:05.1f}\u00b0, {p.speed_kn:g} kn", ""))
+    rows.append(("GHA Sun", format_dm(p.sun_gha_deg, deg_width=3, wrap360=True),
+                 f"LHA {format_dm(p.lha_deg, deg_width=3, wrap360=True)} at the DR longitude"))
+    rows.append(("Dec Sun", format_lat(p.sun_dec_deg), f"SD {p.sun_sd_arcmin:.1f}\u2032"))
+    lan_lmt = _clock(12.0 - n.equation_of_time_min / 60.0)
+    rows.append(("EoT", eot_text(n.equation_of_time_min),
+                 f"apparent \u2212 mean time: noon at {lan_lmt} local mean time"))
+    rows.append(("Hc", format_dm(p.hc_deg), f"on the meridian at the DR, the Sun bearing "
+                                            f"{n.bearing} (Zn {p.zn_deg:05.1f}\u00b0)"))
+    if p.hs_preset_deg is not None:
+        c = p.correction
+        rows.append(("Hs to preset", format_dm(p.hs_preset_deg),
+                     "lower limb, " + _instrument_text(p.eye_height_m, p.index_error_arcmin,
+                                                       p.temperature_c, p.pressure_hpa, p.horizon)))
+        steps = [("index", c.index_arcmin), ("dip", c.dip_arcmin),
+                 ("refraction", c.refraction_arcmin), ("SD", c.sd_arcmin),
+                 ("parallax", c.parallax_arcmin)]
+        if p.horizon == "artificial":
+            steps.insert(1, ("halved", 0.0))
+        rows.append(("corrections", format_arcmin(float(c.total_arcmin)),
+                     "Hc \u2212 Hs: " + ", ".join(f"{k} {format_arcmin(float(v))}" if k != "halved"
+                                              else "altitude halved" for k, v in steps)))
+    out = [f"Local apparent noon on {p.day:%Y-%m-%d}: the Sun on the meridian of the DR"]
+    out += _rows(rows)
+    out += [f"  ! {w}" for w in p.warnings]
+    return out
+
+
+def _r360(x, k=7):
+    """An angle in [0, 360) rounded for JSON (359.99999999 is 0.0, never 360.0)."""
+    return round(float(x), k) % 360.0
+
+
+def noon_dict(p) -> dict:
+    """The noon prediction for JSON (decimal degrees, unit suffixes)."""
+    n = p.noon
+
+    def r(x, k=7):
+        return None if x is None else round(float(x), k)
+
+    zd = n.zone_description
+    return {
+        "date": f"{p.day:%Y-%m-%d}", "utc": f"{_second(n.utc):%Y-%m-%dT%H:%M:%S}Z",
+        "zone_time": None if n.zone_time is None else f"{_second(n.zone_time):%Y-%m-%dT%H:%M:%S}",
+        "zone_description_h": None if zd is None else zd.total_seconds() / 3600.0,
+        "watch_reading": (None if p.watch_reading is None
+                          else f"{_second(p.watch_reading):%Y-%m-%dT%H:%M:%S}"),
+        "watch_error_s": p.watch_error_s,
+        "lat_deg": r(n.lat_deg), "lon_deg": r(n.lon_deg),
+        "dr_utc": f"{_second(p.dr_utc):%Y-%m-%dT%H:%M:%S}Z", "dr_lat_deg": r(p.dr_lat_deg),
+        "dr_lon_deg": r(p.dr_lon_deg), "course_deg": r(p.course_deg), "speed_kn": r(p.speed_kn),
+        "sun_gha_deg": _r360(p.sun_gha_deg), "sun_dec_deg": r(p.sun_dec_deg),
+        "sun_sd_arcmin": r(p.sun_sd_arcmin, 4), "sun_hp_arcmin": r(p.sun_hp_arcmin, 4),
+        "lha_deg": _r360(p.lha_deg), "hc_deg": r(p.hc_deg), "zn_deg": _r360(p.zn_deg, 4),
+        "bearing": n.bearing, "hs_preset_deg": r(p.hs_preset_deg), "limb": p.limb,
+        "eye_height_m": p.eye_height_m, "index_error_arcmin": p.index_error_arcmin,
+        "temperature_c": p.temperature_c, "pressure_hpa": p.pressure_hpa, "horizon": p.horizon,
+        "equation_of_time_min": r(n.equation_of_time_min, 4), "iterations": n.iterations,
+        "warnings": list(p.warnings),
+    }
+
+
+def correction_rows(s, **notes) -> tuple[list[tuple[str, str, str]], list[str]]:
+    """The Hs -> Ho steps of a reduced sight, as (label, value, note) rows (the head of
+    :func:`reduction_lines`, so both say the same), and the corrections' warnings."""
+    import re
+
+    from .reduction import reduction_warnings
+
+    rows = []
+    for line in reduction_lines(s, **notes):
+        m = re.match(r"^  (.{13})(\S.*?)(?:\s{2,}(\S.*))?$", line)
+        rows.append((m.group(1).strip(), m.group(2), m.group(3) or ""))
+        if rows[-1][0] == "Ho":
+            break
+    reducing = set(reduction_warnings(s.ho_deg, s.intercept_nmi))   # about Hc and the intercept
+    return rows, [w for w in s.warnings if w not in reducing]
+
+
+_METHOD_HEAD = {"upper transit": "Latitude by meridian altitude (upper transit)",
+                "lower transit": "Latitude by meridian altitude below the pole (lower transit)",
+                "Polaris": "Latitude by Polaris"}
+
+
+def _rule(w) -> tuple[str, str]:
+    """The meridian rule applied: (which case, the formula with its name)."""
+    z, dec = w.zenith_distance_deg, abs(w.dec_deg)
+    names = f"z {w.zenith_name}, Dec {w.dec_name}: "
+    if z == 0.0:
+        return "zenith", "the body in the zenith: lat = Dec"
+    if w.same_name:
+        return "same names", names + f"lat = z + Dec, named {w.dec_name}"
+    if z >= dec:
+        return "contrary names", names + f"lat = z \u2212 Dec, named {w.zenith_name}"
+    return "contrary names", names + f"lat = Dec \u2212 z, named {w.dec_name}"
+
+
+def meridian_latitude_lines(w, *, title: str | None = None, **notes) -> list[str]:
+    """A :class:`nav.noonsight.MeridianLatitude` as worked steps. `notes`: the
+    instrument values for the correction lines (as :func:`reduction_lines`)."""
+    head = title or sight_title(w.sight)
+    out = [f"{_METHOD_HEAD[w.method]}", head]
+    rows, sight_warnings = correction_rows(w.sight, **notes)
+    lha = format_dm(w.lha_deg, deg_width=3, wrap360=True)
+    gha = format_dm(w.gha_deg, deg_width=3, wrap360=True)
+    if w.method == "Polaris":
+        rows += [("GHA Aries", format_dm(w.gha_aries_deg, deg_width=3, wrap360=True), ""),
+                 ("SHA", format_dm(w.sha_deg, deg_width=3, wrap360=True), "of Polaris"),
+                 ("GHA", gha, "GHA Aries + SHA"),
+                 ("LHA", lha, f"GHA + DR lon ({format_lon(w.dr_lon_deg)})"),
+                 ("Dec", format_lat(w.dec_deg),
+                  f"polar distance p {format_dm(w.polar_distance_deg)}"),
+                 ("latitude", format_lat(w.lat_deg), "solved exactly from sin Ho = sin lat sin Dec "
+                                                     "+ cos lat cos Dec cos LHA"),
+                 ("lat \u2212 Ho", format_dm(w.lat_deg - w.ho_deg, signed=True),
+                  "(about \u2212p cos LHA: what printed Polaris corrections give)"),
+                 ("DR lon", f"{w.lat_per_30arcmin_lon_arcmin:.1f}\u2032 per 30\u2032",
+                  "the latitude's change for a DR longitude 30\u2032 different")]
+    else:
+        transit = w.method.split()[0]
+        rows += [("LHA", lha, f"GHA {gha} + DR lon ({format_lon(w.dr_lon_deg)}): "
+                              f"{w.off_meridian_deg:.2f}\u00b0 from {transit} transit "
+                              f"(limit {w.limit_deg:g}\u00b0)"),
+                 ("ex-meridian", format_arcmin(-w.ex_meridian_arcmin),
+                  "altitude at this LHA minus on the meridian, at the DR")]
+        if w.method == "upper transit":
+            side = "north" if w.bearing == "S" else "south"
+            rows += [("bearing", w.bearing, f"on the meridian: the DR latitude is {side} of the "
+                                           "Dec" + (" (or on it)" if w.bearing == "S" else "")),
+                     ("zenith dist.", f"{format_dm(w.zenith_distance_deg)} {w.zenith_name}",
+                      "z = 90\u00b0 \u2212 Ho, named opposite to the bearing"),
+                     ("Dec", format_lat(w.dec_deg), ""),
+                     ("rule", *_rule(w))]
+        else:
+            rows += [("bearing", w.bearing, "below the pole: toward the elevated pole"),
+                     ("Dec", format_lat(w.dec_deg), ""),
+                     ("polar dist.", format_dm(w.polar_distance_deg), "p = 90\u00b0 \u2212 Dec"),
+                     ("rule", "below the pole", "lat = Ho + p, named like the Dec "
+                                                    f"({'S' if w.dec_deg < 0 else 'N'})")]
+        rows.append(("latitude", format_lat(w.lat_deg), ""))
+    diff = (w.dr_lat_deg - w.lat_deg) * 60.0
+    side = "north" if diff >= 0 else "south"
+    rows.append(("DR lat", format_lat(w.dr_lat_deg),
+                 f"{abs(diff):.1f}\u2032 {side} of the latitude found"))
+    out += _rows(rows)
+    out += [f"  ! {x}" for x in (*sight_warnings, *w.warnings)]
+    out.append("  A single latitude is a line of position (a parallel), not a fix.")
+    return out
+
+
+def meridian_latitude_dict(w) -> dict:
+    def r(x, k=7):
+        return None if x is None else round(float(x), k)
+
+    return {
+        "method": w.method, "body": w.body, "utc": f"{w.utc:%Y-%m-%dT%H:%M:%S}Z",
+        "lat_deg": r(w.lat_deg), "ho_deg": r(w.ho_deg), "gha_deg": _r360(w.gha_deg),
+        "dec_deg": r(w.dec_deg), "lha_deg": _r360(w.lha_deg), "dr_lat_deg": r(w.dr_lat_deg),
+        "dr_lon_deg": r(w.dr_lon_deg), "bearing": w.bearing,
+        "zenith_distance_deg": r(w.zenith_distance_deg), "zenith_name": w.zenith_name,
+        "dec_name": w.dec_name, "same_name": w.same_name,
+        "off_meridian_deg": r(w.off_meridian_deg), "ex_meridian_arcmin": r(w.ex_meridian_arcmin, 4),
+        "meridian_limit_deg": w.limit_deg, "polar_distance_deg": r(w.polar_distance_deg),
+        "gha_aries_deg": None if w.gha_aries_deg is None else _r360(w.gha_aries_deg),
+        "sha_deg": None if w.sha_deg is None else _r360(w.sha_deg),
+        "lat_per_30arcmin_lon_arcmin": r(w.lat_per_30arcmin_lon_arcmin, 4),
+        "warnings": list(w.warnings), "sight": reduction_dict(w.sight),
+    }
+
+
+def noon_longitude_lines(w, when: str) -> list[str]:
+    """A :class:`nav.noonsight.TimedNoonLongitude` as worked steps; `when` says how the
+    time was read."""
+    wk = w.working
+    late_h = ((float(wk.observed_ut1_h) - float(wk.greenwich_lan_ut1_h) + 12.0) % 24.0) - 12.0
+    rows = [("GHA Sun", format_dm(w.sun_gha_deg, deg_width=3, wrap360=True),
+             "at that instant; on the meridian LHA = GHA + lon = 0"),
+            ("longitude", format_lon(w.lon_deg), "lon = \u2212GHA (east +)"),
+            ("EoT", eot_text(wk.equation_of_time_min), "apparent \u2212 mean time"),
+            ("Greenwich", f"{_clock(wk.greenwich_lan_ut1_h)} UT1",
+             "the Sun on the Greenwich meridian: 12:00 \u2212 EoT"),
+            ("observed", f"{_clock(wk.observed_ut1_h)} UT1",
+             "the transit seen aboard (UT1 \u2212 UTC is under 0.9 s)"),
+            ("difference", _span(late_h),
+             f"{'later' if late_h >= 0 else 'earlier'} than at Greenwich, 15\u00b0 an hour: "
+             f"{format_lon(float(wk.lon_deg))}")]
+    if w.dr_lon_deg is not None:
+        from .angles import norm180
+
+        d = float(norm180(w.lon_deg - w.dr_lon_deg)) * 60.0
+        side = "east" if d >= 0 else "west"
+        rows.append(("DR lon", format_lon(w.dr_lon_deg),
+                     f"the longitude found is {abs(d):.1f}\u2032 {side} of it ({w.basis})"))
+    out = [f"Longitude by the time of noon: the Sun on the meridian at {when}"] + _rows(rows)
+    hang = ("" if w.hang_min is None else
+            f" At the DR the Sun stays within 0.1\u2032 of its meridian altitude for "
+            f"\u00b1{w.hang_min:.1f} min, that is \u00b1{w.hang_min * 15.0:.0f}\u2032 of "
+            "longitude.")
+    import textwrap
+
+    caution = ("caution: the Sun hangs near the meridian: its altitude hardly changes in the "
+               "minutes about noon, so the instant of the greatest altitude is poorly observed, "
+               "and each minute of time misjudged is 15\u2032 of longitude." + hang +
+               " Better: time equal altitudes before and after noon and take the mean instant, "
+               "or cross a morning sight run up to noon with the noon latitude (fix).")
+    out += textwrap.wrap(caution, 96, initial_indent="  ! ", subsequent_indent="    ")
+    return out

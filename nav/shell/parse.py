@@ -10,10 +10,11 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field
+from datetime import timedelta
 
 from ..errors import NavInputError
 from ..fields import check_limb, parse_body, parse_sight_utc
-from .times import TimeRead, now_time, parse_time_options
+from .times import TimeRead, now_time, parse_at, parse_time_options
 from .words import (CORRECTABLE, DR_WORDS, EXPORT_FORMATS, NUMERIC_START, OPTIONS,
                     PLOT_EXTENSIONS, SETTING_WORDS, SIGHT_WORDS, Token, option_fields,
                     body_fields, hs_fields, position_fields, split_words)
@@ -295,6 +296,61 @@ def parse_import(args, line, ctx) -> Request:
                             field="file", example='import sights.csv or import "deck log.csv"')
     return Request("import", args={"path": _file_word(args[0], (".csv",), "file",
                                                       "import sights.csv")})
+
+
+def _trailing_log(args: list[Token]) -> tuple[list[Token], bool]:
+    """A last word ``log`` (not quoted): log the result as a note."""
+    if args and not args[-1].quoted and args[-1].text.lower() == "log":
+        return args[:-1], True
+    return args, False
+
+
+def parse_noon(args, line, ctx) -> Request:
+    """``noon [DATE]``: the ship's date (zone date); default that of the latest entry with a
+    time, else today's."""
+    from ..noonsight import parse_date
+
+    _no_more(args[1:], "noon", "noon 2026-06-21")
+    if args:
+        return Request("noon", args={"date": parse_date(args[0].text, "date"), "why": "given"})
+    zd_h = float(ctx.settings.zone_description_h)
+    word = "zone" if zd_h else "UTC"
+    ref, eid = ctx.reference()
+    if ref is not None:
+        day, why = (ref - timedelta(hours=zd_h)).date(), \
+            f"the {word} date of the latest entry with a time, {eid}"
+    else:
+        day, why = (ctx.now() - timedelta(hours=zd_h)).date(), \
+            f"today's {word} date; no entry has a time yet"
+    return Request("noon", args={"date": parse_date(f"{day:%Y-%m-%d}", "date"), "why": why})
+
+
+def parse_latitude(args, line, ctx) -> Request:
+    args, log = _trailing_log(args)
+    if len(args) != 1:
+        raise NavInputError("name one sight" if not args else
+                            f"'{args[1].text}' is not understood here (only log may follow)",
+                            field="id", example="latitude e0005, or latitude e0005 log")
+    sid = _entry_id(args[0].text, ctx, "id", kinds=("sight",))
+    if ctx.lookup(sid) is None:
+        raise NavInputError(f"{sid} is struck", field="id", example="a sight that `log` lists")
+    return Request("latitude", args={"id": sid, "log": log})
+
+
+def parse_longitude(args, line, ctx) -> Request:
+    example = "longitude at 13:41:36, longitude zt 11:41:48, or longitude 13:41:36 log"
+    args, log = _trailing_log(args)
+    pos, opts = split_words(line, args, ("at", "zt"), command="longitude")
+    if opts:
+        _no_more(pos, "longitude", example)
+        t = parse_time_options(opts, ctx, sight=True)
+    elif len(pos) == 1:
+        t = parse_at(pos[0].text, ctx, sight=True)
+    else:
+        raise NavInputError("give the time of the Sun's meridian passage once" if pos else
+                            "give the time of the Sun's meridian passage", field="at",
+                            example=example)
+    return Request("longitude", time=t, args={"log": log})
 
 
 def parse_plain(name: str, example: str):

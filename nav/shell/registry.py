@@ -12,10 +12,11 @@ from dataclasses import dataclass
 from typing import Callable
 
 from ..errors import NavInputError
-from . import handlers, records
+from . import handlers, meridian_cmds, records
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
-                    parse_fix, parse_import, parse_log, parse_note, parse_plain, parse_plot,
-                    parse_set, parse_show, parse_sight, parse_speed, parse_strike, parse_where)
+                    parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
+                    parse_noon, parse_note, parse_plain, parse_plot, parse_set, parse_show,
+                    parse_sight, parse_speed, parse_strike, parse_where)
 from .words import CORRECTABLE, DR_WORDS, SETTING_WORDS, SIGHT_WORDS, tokenize
 
 
@@ -78,6 +79,35 @@ COMMANDS_LIST = (
             ("fix", "fix e0004 e0005 e0007")),
     Command("where", f"where [{TIME}]", "where the vessel is, and on what basis",
             parse_where, handlers.run_where, ("at", "zt"), None, (), ("where", "where at 23:30")),
+    Command("noon", "noon [DATE]",
+            "predict local apparent noon from the DR: UTC, zone time, watch, Hc, Hs to preset",
+            parse_noon, meridian_cmds.run_noon, (), None,
+            ("DATE: the ship's date, 2026-06-21 (default: the zone date of the latest entry "
+             "with a time, else today's)",
+             "the Sun's meridian passage is solved at the DR longitude the vessel will have "
+             "reached, along the legs in force",
+             "the watch reading to expect: ZT + the watch error of `set watch` (a fast watch "
+             "reads ahead)",
+             "Hs to preset: the lower limb's reading that corrects to Hc with the height of "
+             "eye, index error, temperature and pressure in force"),
+            ("noon", "noon 2026-06-21")),
+    Command("latitude", "latitude ID [log]",
+            "latitude from a meridian sight or Polaris, worked; `log` notes it",
+            parse_latitude, meridian_cmds.run_latitude, (), "sight",
+            ("a meridian sight: any body within 1° of LHA (4 min of time for the Sun) of its "
+             "upper or lower transit at the DR; farther off, use the sight in a fix",
+             "Polaris: at any LHA, solved exactly from its GHA and Dec at the DR longitude",
+             "log: append the latitude as a note (a line of position, not a fix; the DR is "
+             "not moved)"),
+            ("latitude e0005", "latitude e0009 log")),
+    Command("longitude", f"longitude ({TIME}) [log]",
+            "longitude from the timed instant of the Sun's meridian passage",
+            parse_longitude, meridian_cmds.run_longitude, ("at", "zt"), None,
+            ("TIME: the instant of the Sun's greatest altitude (a bare time is UTC, as `at`)",
+             "lon = −GHA of the Sun then; the working with the equation of time is shown too",
+             "the timing is the weak point: 1 min of time is 15′ of longitude",
+             "log: append the longitude as a note (a line of position, not a fix)"),
+            ("longitude at 13:41:36", "longitude zt 11:41:48 log")),
     Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
             parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
             ("almanac Sun at 12:00:00",)),

@@ -146,6 +146,11 @@ def suggest(text: str, st) -> list[tuple[str, int, str]]:
     if first == "entry" and not args:
         kinds = None if cmd.name == "show" else ("setting", "dr", "sight", "fix", "note")
         return _match(cur, _entries(st, kinds, standing=cmd.name != "show"), start)
+    if first == "sight" and cmd.name == "latitude":
+        if not args:
+            return _match(cur, _entries(st, ("sight",)), start)
+        return _match(cur, [("log", "note the latitude in the log")], start) \
+            if len(args) == 1 else []
     if first == "sight":
         return [c for c in _match(cur, _entries(st, ("sight",)), start) if c[0] not in lowered]
     if first == "command" and not args:

@@ -1,0 +1,147 @@
+"""`nav noon` and `nav latitude`: the noon sight and Polaris from the command line.
+
+The working lives in :mod:`nav.noonsight` (shared with the shell); this module parses the
+options, calls it and prints through :mod:`nav.render`.
+"""
+
+from __future__ import annotations
+
+import json
+import sys
+from datetime import datetime, time, timedelta
+
+from .. import CAUTION
+from ..errors import NavInputError
+from ..noonsight import DATE_EXAMPLE, MERIDIAN_LIMIT_DEG, meridian_latitude, parse_date, predict_noon
+
+NOON_DESCRIPTION = (
+    "Predict local apparent noon (the Sun's upper meridian passage) on a date, for a vessel "
+    "whose DR at 12:00 local mean time of that date (12:00 UTC − longitude/15°) is --dr-lat "
+    "--dr-lon, sailing --course at --speed: UTC and zone time, the DR at noon, the Sun's GHA "
+    "and Dec, the equation of time, Hc on the meridian and the Hs to preset for the lower limb "
+    "(10 °C, 1010 hPa, sea horizon).")
+LATITUDE_DESCRIPTION = (
+    "Latitude from one sight: by meridian altitude for a body within "
+    f"{MERIDIAN_LIMIT_DEG:g}° of LHA of its upper or lower transit at the DR, or from Polaris at "
+    "any LHA. The DR latitude decides the name rule (the body bears south when the DR is north "
+    "of its Dec) and the corrections' parallax; its longitude gives the LHA. A single latitude "
+    "is a line of position, not a fix.")
+
+
+def register(sub) -> None:
+    n = sub.add_parser("noon", help="predict local apparent noon: UTC, zone time, Hc, Hs to "
+                                    "preset", description=NOON_DESCRIPTION)
+    n.add_argument("--date", metavar="YYYY-MM-DD", help="the local date (required)")
+    n.add_argument("--dr-lat", metavar="LAT", help="DR latitude at 12:00 LMT: 41 12.5 N or "
+                                                   "41.2083 (required)")
+    n.add_argument("--dr-lon", metavar="LON", help="DR longitude at 12:00 LMT: 032 07.1 W or "
+                                                   "-32.118 (required)")
+    n.add_argument("--course", metavar="C", help="course, degrees true (with --speed)")
+    n.add_argument("--speed", metavar="S", help="speed, knots (with --course)")
+    n.add_argument("--zone", metavar="ZD", help="zone description, UTC = ZT + ZD: +3 for 45° W")
+    n.add_argument("--eye-height-m", metavar="H", default="0", help="height of eye (default 0)")
+    n.add_argument("--index-error", metavar="X", default="0",
+                   help="index error, arcmin, + on the arc (default 0)")
+    n.add_argument("--json", action="store_true", help="print one JSON object")
+    n.set_defaults(func=run_noon)
+
+    a = sub.add_parser("latitude", help="latitude from a meridian sight or from Polaris",
+                       description=LATITUDE_DESCRIPTION)
+    a.add_argument("--body", help="body observed (required)")
+    a.add_argument("--utc", metavar="T", help="time of the sight, ISO 8601 (required)")
+    a.add_argument("--hs", metavar="HS", help="sextant altitude: 52 08.4 or 52.14 (required)")
+    a.add_argument("--limb", metavar="L", help="lower (default for Sun and Moon), upper, center")
+    a.add_argument("--index-error", metavar="X", default="0",
+                   help="index error, arcmin, + on the arc (default 0)")
+    a.add_argument("--eye-height-m", metavar="H", default="0", help="height of eye (default 0)")
+    a.add_argument("--dr-lat", metavar="LAT", help="DR latitude (required)")
+    a.add_argument("--dr-lon", metavar="LON", help="DR longitude (required)")
+    a.add_argument("--json", action="store_true", help="print one JSON object")
+    a.set_defaults(func=run_latitude)
+
+
+def _required(args, names: dict) -> None:
+    for attr, (flag, example) in names.items():
+        if getattr(args, attr) in (None, ""):
+            raise NavInputError(f"{flag} is required", field=flag.lstrip("-").replace("-", "_"),
+                                example=f"{flag} {example}")
+
+
+def _spec(name: str):
+    from ..fields import SIGHT_FIELD_BY_NAME
+
+    return SIGHT_FIELD_BY_NAME[name].parse
+
+
+def _instrument(args) -> tuple[float, float]:
+    from ..angles import parse_height_m
+
+    return (parse_height_m(args.eye_height_m, "eye_height_m"),
+            _spec("index_error")(args.index_error, "index_error"))
+
+
+def run_noon(args) -> int:
+    from ..angles import parse_lat, parse_lon
+    from ..meridian import local_apparent_noon
+    from ..render import noon_dict, noon_lines
+    from ..timekeeping import UTC, parse_zone_description
+
+    _required(args, {"date": ("--date", DATE_EXAMPLE), "dr_lat": ("--dr-lat", "'41 12.5 N'"),
+                     "dr_lon": ("--dr-lon", "'032 07.1 W'")})
+    day = parse_date(args.date, "date")
+    lat, lon = parse_lat(args.dr_lat, "dr_lat"), parse_lon(args.dr_lon, "dr_lon")
+    if (args.course is None) != (args.speed is None):
+        raise NavInputError("give --course and --speed together (or neither: hove to)",
+                            field="course" if args.course is None else "speed",
+                            example="--course 245 --speed 6.5")
+    course = _spec("course_deg")(args.course, "course") if args.course is not None else None
+    speed = _spec("speed_kn")(args.speed, "speed") if args.speed is not None else 0.0
+    zd = parse_zone_description(args.zone, "zone") if args.zone is not None else None
+    eye, ie = _instrument(args)
+    dr_utc = datetime.combine(day, time(12), tzinfo=UTC) - timedelta(hours=lon / 15.0)
+    moving = course is not None and speed > 0
+    noon = local_apparent_noon(dr_utc, lat, lon, course if moving else 0.0,
+                               speed if moving else 0.0, zd)
+    pred = predict_noon(noon, day=day, dr_utc=dr_utc, dr_lat_deg=lat, dr_lon_deg=lon,
+                        course_deg=course, speed_kn=speed,
+                        basis=f"DR given for 12:00 LMT ({dr_utc:%Y-%m-%d %H:%M:%S} UTC)",
+                        eye_height_m=eye, index_error_arcmin=ie)
+    if args.json:
+        json.dump({**noon_dict(pred), "caution": CAUTION}, sys.stdout, indent=1,
+                  ensure_ascii=False)
+        sys.stdout.write("\n")
+        return 0
+    print("\n".join(noon_lines(pred)))
+    print()
+    print(CAUTION)
+    return 0
+
+
+def run_latitude(args) -> int:
+    from ..angles import parse_lat, parse_lon
+    from ..fields import check_limb, parse_body, parse_limb, parse_sight_utc
+    from ..reduction import reduce_sight
+    from ..render import meridian_latitude_dict, meridian_latitude_lines
+
+    _required(args, {"body": ("--body", "Sun"), "utc": ("--utc", "2026-06-21T13:41:36Z"),
+                     "hs": ("--hs", "'75 45.3'"), "dr_lat": ("--dr-lat", "'37 20.3 N'"),
+                     "dr_lon": ("--dr-lon", "'025 05.0 W'")})
+    body = parse_body(args.body, "body")
+    utc = parse_sight_utc(args.utc, "utc")
+    hs = _spec("hs")(args.hs, "hs")
+    limb = check_limb(body, parse_limb(args.limb, "limb") if args.limb is not None else None)
+    eye, ie = _instrument(args)
+    lat, lon = parse_lat(args.dr_lat, "dr_lat"), parse_lon(args.dr_lon, "dr_lon")
+    red = reduce_sight(body, utc, hs, limb=limb, index_error_arcmin=ie, eye_height_m=eye,
+                       lat_deg=lat, lon_deg=lon)
+    work = meridian_latitude(red, fix_hint="nav fix SIGHTS.csv, with other sights", field="utc")
+    if args.json:
+        json.dump({**meridian_latitude_dict(work), "caution": CAUTION}, sys.stdout, indent=1,
+                  ensure_ascii=False)
+        sys.stdout.write("\n")
+        return 0
+    print("\n".join(meridian_latitude_lines(work, eye_height_m=eye, index_error_arcmin=ie,
+                                            temperature_c=10.0, pressure_hpa=1010.0)))
+    print()
+    print(CAUTION)
+    return 0
