@@ -1,4 +1,4 @@
-"""`nav noon` and `nav latitude` (nav/commands/noon_cmd.py), and the working they share with the
+"""`nav noon` and `nav latitude` (nav/commands/noon_cmd.py), and the working in nav/noonsight.py they share with the
 shell: the noon prediction, the Hs to preset, latitude by meridian altitude and by Polaris,
 longitude by the time of noon.
 
