@@ -40,7 +40,8 @@ from nav.cli import main
 from nav.sailing import dr_position
 from nav.timekeeping import UTC
 from nav.units import ARCMIN_DEG as ARCMIN
-from reference_sky import star_skycoord
+from references import star_skycoord
+from references import mercator_sailing
 
 NMI = 1.0                               # *_nmi values are in nautical miles (1′ of great circle)
 FIX_BAR = 0.1 * NMI                     # the issue's bar for a noise-free star/planet fix
@@ -85,16 +86,6 @@ def _apparent_from_true(h_deg, temperature_c, pressure_hpa):
     return float((lo + hi) / 2)
 
 
-def mercator_sailing(lat_deg, lon_deg, course_deg, dist_nmi):
-    """American Practical Navigator, Mercator sailing on the sphere where 1′ = 1 nmi:
-    l = D·cos C, DLo = (M2 − M1)·tan C, M = ln tan(45° + φ/2). (No course near 090°/270°.)"""
-    c = math.radians(course_deg)
-    lat2 = lat_deg + dist_nmi * math.cos(c) / 60.0
-
-    def meridional(phi_deg):
-        return math.log(math.tan(math.pi / 4 + math.radians(phi_deg) / 2))
-
-    return lat2, lon_deg + math.degrees(math.tan(c) * (meridional(lat2) - meridional(lat_deg)))
 
 
 def airless_altaz(body: str, when: datetime, lat_deg: float, lon_deg: float):

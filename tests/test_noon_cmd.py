@@ -39,7 +39,8 @@ from nav import CAUTION
 from nav.cli import main
 from nav.timekeeping import UTC
 from nav.units import ARCMIN_DEG as ARCMIN
-from reference_sky import star_skycoord
+from references import star_skycoord
+from references import mercator_sailing
 
 SECOND = timedelta(seconds=1)
 INSTANT_TOL = 2 * SECOND                 # see the module docstring
@@ -70,16 +71,6 @@ def ae_sun_hour_angle_s(lat, lon, t: datetime) -> float:
     return ((ha_h + 12.0) % 24.0 - 12.0) * 3600.0
 
 
-def mercator_sailing(lat_deg, lon_deg, course_deg, dist_nmi):
-    """American Practical Navigator, Mercator sailing on the sphere where 1′ = 1 nmi:
-    l = D·cos C, DLo = (M2 − M1)·tan C, M = ln tan(45° + φ/2). (No course near 090°/270°.)"""
-    c = math.radians(course_deg)
-    lat2 = lat_deg + dist_nmi * math.cos(c) / 60.0
-
-    def meridional(phi_deg):
-        return math.log(math.tan(math.pi / 4 + math.radians(phi_deg) / 2))
-
-    return lat2, lon_deg + math.degrees(math.tan(c) * (meridional(lat2) - meridional(lat_deg)))
 
 
 def _de421_path() -> str:

@@ -31,7 +31,7 @@ from hypothesis import strategies as hst
 
 from nav.logbook import load_log, new_log
 from nav.units import ARCMIN_DEG, NMI_M
-from reference_sky import star_skycoord
+from references import star_skycoord
 
 UTC = timezone.utc
 ARCMIN = ARCMIN_DEG

@@ -34,7 +34,8 @@ from nav.angles import parse_altitude, parse_lat, parse_lon
 from nav.logbook import load_log, new_log
 from nav.timekeeping import UTC
 from nav.units import ARCMIN_DEG as ARCMIN
-from reference_sky import star_skycoord
+from references import star_skycoord
+from references import mercator_sailing
 
 PRINTED = 0.05 * ARCMIN                     # the shell prints angles to 0.1′
 INSTANT_TOL_S = 2.0                         # see the module docstring
@@ -55,16 +56,6 @@ def clock():
     return CLOCK_NOW
 
 
-def mercator_sailing(lat_deg, lon_deg, course_deg, dist_nmi):
-    """American Practical Navigator, Mercator sailing on the sphere where 1′ = 1 nmi:
-    l = D·cos C, DLo = (M2 − M1)·tan C, M = ln tan(45° + φ/2). (No course near 090°/270°.)"""
-    c = math.radians(course_deg)
-    lat2 = lat_deg + dist_nmi * math.cos(c) / 60.0
-
-    def meridional(phi_deg):
-        return math.log(math.tan(math.pi / 4 + math.radians(phi_deg) / 2))
-
-    return lat2, lon_deg + math.degrees(math.tan(c) * (meridional(lat2) - meridional(lat_deg)))
 
 
 def track(t: datetime, start=START, legs=LEGS) -> tuple[float, float]:

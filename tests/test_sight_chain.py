@@ -28,7 +28,7 @@ import pytest
 
 from nav.reduction import reduce_sights
 from nav.units import ARCMIN_DEG as ARCMIN
-from reference_sky import star_skycoord
+from references import star_skycoord
 
 NMI = 1.0                                   # the unit of *_nmi values (1′ of great circle)
 SUN_RADIUS_KM = 696_000.0                   # solar radius behind the almanac's SD 15.99′ at 1 AU

@@ -31,6 +31,7 @@ from nav.sailing import dr_position
 from nav.sightfile import parse_sight_csv, read_sight_file
 from nav.timekeeping import UTC
 from nav.units import ARCSEC_DEG as ARCSEC
+from references import mercator_sailing
 
 FOOT_M = 0.3048                       # international foot (1959), exact
 EXACT = 1e-9 * ARCSEC                 # values written with 9 or more decimals parse back to this
@@ -47,20 +48,6 @@ def csv_text(header, rows) -> str:
 
 def errors_by_place(sf):
     return {(e.row, e.field) for e in sf.errors}
-
-
-def mercator_sailing(lat_deg, lon_deg, course_deg, dist_nmi):
-    """American Practical Navigator, Mercator sailing on the sphere where 1′ of arc = 1 nmi:
-    l = D cos C (minutes of latitude), DLo = (M2 − M1)·tan C with M = ln tan(45° + φ/2).
-    Not for courses within a few degrees of 090°/270° (the tests avoid them)."""
-    c = math.radians(course_deg)
-    lat2 = lat_deg + dist_nmi * math.cos(c) / 60.0
-
-    def meridional(phi_deg):
-        return math.log(math.tan(math.pi / 4 + math.radians(phi_deg) / 2))
-
-    dlon = math.degrees(math.tan(c) * (meridional(lat2) - meridional(lat_deg)))
-    return lat2, lon_deg + dlon
 
 
 # ---------------------------------------------------------------- one cell, the accepted forms
