@@ -18,7 +18,6 @@ from __future__ import annotations
 
 import csv
 import io
-import math
 from datetime import datetime, timedelta
 
 import pytest
