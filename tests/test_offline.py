@@ -99,7 +99,7 @@ def test_nav_almanac_process_is_offline_and_silent(guarded_env, tmp_path):
 
 
 def test_engine_in_a_fresh_process_is_offline_and_silent(guarded_env, tmp_path):
-    code = textwrap.dedent(f'''
+    code = textwrap.dedent('''
         import warnings
         from datetime import datetime, timezone
         import numpy as np
