@@ -10,7 +10,7 @@ Format ``nav-passage-log``, version 1 (our own; summarised in sight_logs/README.
   ``hs_deg`` (34.205). The log stores and loads; it parses no input and does no navigation.
 - Nothing is ever rewritten. A ``strike`` or ``correct`` entry supersedes an earlier entry by its
   id; the *effective* view applies them, :meth:`LoadedLog.history_of` keeps everything.
-- The schema (fields, kinds, checks) lives in :mod:`nav.logschema`.
+- The schema (fields, kinds, checks) and the line codec live in :mod:`nav.logschema`.
 - The one exception: a torn last line (a power cut mid-write) is copied to a side file
   ``<name>.jsonl.torn-<UTC stamp>``; the copy is fsynced and read back, and only then is the main
   file truncated to its last good newline; a ``repair`` entry then records where the bytes went,
@@ -19,6 +19,9 @@ Format ``nav-passage-log``, version 1 (our own; summarised in sight_logs/README.
 - Strict by default: a bad line anywhere but at the end refuses the file, naming its line and
   field. ``load_log(path, strict=False)`` reads the good lines and lists the problems (for an
   instructor reading a damaged log); such a log is never appended to.
+- ``logged_utc`` comes from the log's clock: the wall clock, or a callable given to
+  :func:`new_log` / :meth:`PassageLog.open` (``clock=``) that returns an aware datetime (a
+  replayed or generated passage, a test); the time is written in UTC, rounded to the second.
 - Durability: an append writes its line(s) with one ``write`` on an ``O_APPEND`` descriptor and
   fsyncs before it returns; a new file (the log, a side file) is written under a temporary name,
   fsynced, hard-linked into place (never overwriting) and its directory fsynced.
@@ -32,8 +35,6 @@ from __future__ import annotations
 import errno
 import glob
 import hashlib
-import json
-import numbers
 import os
 import re
 import secrets
@@ -41,13 +42,13 @@ from dataclasses import dataclass
 from datetime import datetime
 from pathlib import Path
 from types import MappingProxyType
-from typing import Any, Iterable, Mapping
+from typing import Any, Callable, Iterable, Mapping
 
 from . import __version__
 from .errors import NavError, NavInputError
-from .timekeeping import ISO_EXAMPLE, UTC, format_utc
+from .timekeeping import UTC, format_utc
 from .logschema import (  # SCHEMA and COMMON are re-exported: part of this module's API
-    COMMON, MAX_LINE_BYTES, SCHEMA, _check_entry, _decode_line,
+    COMMON, MAX_LINE_BYTES, SCHEMA, _check_entry, _decode_line, _encode, _normalise,
 )
 
 try:
@@ -59,6 +60,7 @@ FORMAT, FORMAT_VERSION = "nav-passage-log", 1
 MAX_LOG_BYTES = 50 * 1024 * 1024      # ~200 000 sights: far more than any passage
 SUPERSEDABLE = ("setting", "dr", "sight", "fix", "note")
 _TORN_ID = re.compile(rb'"id"\s*:\s*"e(\d{4,9})"')
+CLOCK_EXAMPLE = "clock=lambda: datetime(2026, 6, 19, 8, 0, tzinfo=timezone.utc)"
 
 
 class LogFormatError(NavInputError):
@@ -338,36 +340,6 @@ def load_log(path: Path | str, *, strict: bool = True, max_bytes: int = MAX_LOG_
 
 # ---------------------------------------------------------------- writing
 
-def _normalise(v: Any, name: str) -> Any:
-    """Caller values -> JSON values (aware datetimes -> ISO 8601 Z); None values are left out."""
-    if isinstance(v, datetime):
-        if v.tzinfo is None:
-            raise NavInputError("a time without a time zone", field=name, example=ISO_EXAMPLE)
-        v = v.astimezone(UTC)
-        return v.strftime("%Y-%m-%dT%H:%M:%S") + v.strftime(".%f").rstrip("0").rstrip(".") + "Z"
-    if isinstance(v, numbers.Number) and not isinstance(v, bool):
-        return int(v) if isinstance(v, numbers.Integral) else float(v)
-    if isinstance(v, Mapping):
-        if not all(isinstance(k, str) for k in v):
-            raise NavInputError("field names must be text", field=name)
-        return {k: _normalise(x, k) for k, x in v.items() if x is not None}
-    if isinstance(v, (list, tuple)):
-        return [_normalise(x, name) for x in v]
-    if v is None or isinstance(v, (str, bool)):
-        return v
-    raise NavInputError(f"a {type(v).__name__} cannot be stored in the log", field=name)
-
-
-def _encode(o: dict, replacement_kind: str | None = None) -> bytes:
-    """The line of an entry: fixed key order, UTF-8, no NaN, newline-terminated."""
-    out = {k: o[k] for k in (*COMMON, *SCHEMA[o["kind"]]) if k in o}
-    if replacement_kind:
-        out["replacement"] = {k: o["replacement"][k] for k in SCHEMA[replacement_kind]
-                              if k in o["replacement"]}
-    return (json.dumps(out, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
-            + "\n").encode("utf-8")
-
-
 def _write_fully(fd: int, data: bytes) -> None:
     """One os.write (more only if the kernel writes short). The crash test tears lines here."""
     view = memoryview(data)
@@ -415,17 +387,47 @@ def _write_new_file(candidates: list[Path], data: bytes) -> Path:
     return target
 
 
+def _wall_clock() -> datetime:
+    return datetime.now(UTC)
+
+
+def _checked_clock(clock: Callable[[], datetime] | None) -> Callable[[], datetime]:
+    if clock is None:
+        return _wall_clock
+    if not callable(clock):
+        raise NavInputError(f"the log's clock must be callable, not a {type(clock).__name__}",
+                            field="clock", example=CLOCK_EXAMPLE)
+    return clock
+
+
+def _logged_utc(clock: Callable[[], datetime]) -> str:
+    """The clock's time as a logged_utc: an aware datetime, written in UTC to the second."""
+    t = clock()
+    if not isinstance(t, datetime) or t.utcoffset() is None:
+        what = "a time without a time zone" if isinstance(t, datetime) else f"a {type(t).__name__}"
+        raise NavInputError(f"the log's clock gave {what}; it must give an aware UTC datetime",
+                            field="clock", example=CLOCK_EXAMPLE)
+    return format_utc(t)
+
+
 def new_log(path: Path | str, vessel: str, title: str, *,
-            max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
-    """Create a passage log holding its header, and open it. An existing file is never replaced."""
-    path = Path(path)
-    header = {"id": "e0001", "kind": "passage", "logged_utc": format_utc(datetime.now(UTC)),
+            clock: Callable[[], datetime] | None = None, passage_uid: str | None = None,
+            software: str | None = None, max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
+    """Create a passage log holding its header, and open it. An existing file is never replaced.
+
+    ``clock`` (default: the wall clock) gives every logged_utc, see the module doc;
+    ``passage_uid`` (default: random) is 16 lower-case hex digits; ``software`` names the writer.
+    """
+    path, clock = Path(path), _checked_clock(clock)
+    header = {"id": "e0001", "kind": "passage", "logged_utc": _logged_utc(clock),
               "format": FORMAT, "format_version": FORMAT_VERSION,
-              "passage_uid": secrets.token_hex(8), "vessel": vessel, "title": title,
-              "software": f"nav {__version__}"}
+              "passage_uid": secrets.token_hex(8) if passage_uid is None else passage_uid,
+              "vessel": vessel, "title": title,
+              "software": f"nav {__version__}" if software is None else software}
     bad = _check_entry(header)
     if bad:
-        raise NavInputError(bad[1], field=bad[0], example="vessel 'Kittiwake', title 'Azores run'")
+        raise NavInputError(bad[1], field=bad[0], example="0123456789abcdef" if bad[0] ==
+                            "passage_uid" else "vessel 'Kittiwake', title 'Azores run'")
     exists = NavInputError(f"{path} already exists; a passage log is never overwritten",
                            field="path", example=str(path.with_name(path.stem + "-2.jsonl")))
     if path.exists():
@@ -439,7 +441,7 @@ def new_log(path: Path | str, vessel: str, title: str, *,
         if isinstance(err, FileExistsError) and path.exists():
             raise exists from None
         raise LogWriteError(f"{path}: the log could not be created ({err.strerror})") from None
-    return PassageLog.open(path, max_bytes=max_bytes)
+    return PassageLog.open(path, clock=clock, max_bytes=max_bytes)
 
 
 class PassageLog(LoadedLog):
@@ -449,14 +451,17 @@ class PassageLog(LoadedLog):
     a second writer is refused, so ids stay unique and increasing. Readers (load_log) need no lock.
     """
 
-    def __init__(self, path: Path, fd: int, max_bytes: int):
+    def __init__(self, path: Path, fd: int, max_bytes: int, clock: Callable[[], datetime]):
         super().__init__(path)
         self._fd, self._size, self._max_bytes, self._broken = fd, 0, max_bytes, None
+        self._clock = clock
 
     @classmethod
-    def open(cls, path: Path | str, *, max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
-        """Open for appending: strict loading, then a torn tail set aside (see the module doc)."""
-        path = Path(path)
+    def open(cls, path: Path | str, *, clock: Callable[[], datetime] | None = None,
+             max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
+        """Open for appending: strict loading, then a torn tail set aside (see the module doc).
+        ``clock`` (default: the wall clock) gives every logged_utc this log writes."""
+        path, clock = Path(path), _checked_clock(clock)
         try:
             fd = os.open(path, os.O_WRONLY | os.O_APPEND | getattr(os, "O_CLOEXEC", 0))
         except OSError as err:
@@ -470,7 +475,7 @@ class PassageLog(LoadedLog):
                 except BlockingIOError:
                     raise LogFormatError("is open for writing in another nav session; close it "
                                          "there first", path=path) from None
-            self = cls(path, fd, max_bytes)
+            self = cls(path, fd, max_bytes, clock)
             data = _read_bytes(path, max_bytes)
             _parse(self, data, strict=True)
             self._size, self._id_floor = len(data), max(self._id_floor, _side_file_floor(path))
@@ -501,7 +506,7 @@ class PassageLog(LoadedLog):
             o = _normalise(given, "entry")
             if "id" in o or "logged_utc" in o:
                 raise NavInputError("id and logged_utc are assigned by the log" + where, field="id")
-            o = {"id": trial.next_id(), "logged_utc": format_utc(datetime.now(UTC)), **o}
+            o = {"id": trial.next_id(), "logged_utc": _logged_utc(self._clock), **o}
             bad = _check_entry(o) or trial._admit(o)
             if bad:
                 raise NavInputError(bad[1] + where, field=bad[0])
@@ -560,7 +565,7 @@ class PassageLog(LoadedLog):
     def _set_aside_torn(self) -> None:
         """Copy the torn tail to a side file (fsynced, read back), then truncate; log a repair."""
         t = self.torn_tail
-        stamp = datetime.now(UTC).strftime("%Y%m%dT%H%M%SZ")
+        stamp = re.sub("[-:]", "", _logged_utc(self._clock))
         try:
             side = _write_new_file([self.path.with_name(f"{self.path.name}.torn-{stamp}"
                                                         + (f"-{i}" if i else ""))

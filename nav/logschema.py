@@ -1,20 +1,23 @@
-"""The schema of the passage log (format ``nav-passage-log``): fields, kinds and their checks.
+"""The schema of the passage log (format ``nav-passage-log``): fields, kinds and their checks,
+and the codec of one line (values -> JSON, entry -> line in the fixed key order, line -> object).
 
 Split from :mod:`nav.logbook`, which stores and loads; this module only says what a valid entry
-is. Every message names the field; the loader adds the line.
+is and how it is spelt. Every message names the field; the loader adds the line.
 """
 
 from __future__ import annotations
 
 import json
 import math
+import numbers
 import re
 from dataclasses import dataclass
+from datetime import datetime
 from typing import Any, Mapping
 
 from .errors import NavInputError
 from .fields import HORIZONS, LIMBS
-from .timekeeping import parse_utc
+from .timekeeping import ISO_EXAMPLE, UTC, parse_utc
 
 MAX_LINE_BYTES = 64 * 1024
 MAX_TEXT, MAX_NOTE, MAX_LIST = 200, 4000, 200
@@ -190,6 +193,38 @@ def _check_entry(o: Mapping, replacement_of: str | None = None) -> tuple[str | N
         if f.raw_of and f.raw_of not in o:
             return f.raw_of, f"is missing ('{name}' as typed is given)"
     return _rules(kind, o)
+
+
+# ---------------------------------------------------------------- the line codec
+
+def _normalise(v: Any, name: str) -> Any:
+    """Caller values -> JSON values (aware datetimes -> ISO 8601 Z); None values are left out."""
+    if isinstance(v, datetime):
+        if v.tzinfo is None:
+            raise NavInputError("a time without a time zone", field=name, example=ISO_EXAMPLE)
+        v = v.astimezone(UTC)
+        return v.strftime("%Y-%m-%dT%H:%M:%S") + v.strftime(".%f").rstrip("0").rstrip(".") + "Z"
+    if isinstance(v, numbers.Number) and not isinstance(v, bool):
+        return int(v) if isinstance(v, numbers.Integral) else float(v)
+    if isinstance(v, Mapping):
+        if not all(isinstance(k, str) for k in v):
+            raise NavInputError("field names must be text", field=name)
+        return {k: _normalise(x, k) for k, x in v.items() if x is not None}
+    if isinstance(v, (list, tuple)):
+        return [_normalise(x, name) for x in v]
+    if v is None or isinstance(v, (str, bool)):
+        return v
+    raise NavInputError(f"a {type(v).__name__} cannot be stored in the log", field=name)
+
+
+def _encode(o: dict, replacement_kind: str | None = None) -> bytes:
+    """The line of an entry: fixed key order, UTF-8, no NaN, newline-terminated."""
+    out = {k: o[k] for k in (*COMMON, *SCHEMA[o["kind"]]) if k in o}
+    if replacement_kind:
+        out["replacement"] = {k: o["replacement"][k] for k in SCHEMA[replacement_kind]
+                              if k in o["replacement"]}
+    return (json.dumps(out, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
+            + "\n").encode("utf-8")
 
 
 def _no_dupes(pairs):

@@ -12,6 +12,7 @@ from __future__ import annotations
 import hashlib
 import json
 import os
+import re
 import stat
 from datetime import datetime, timedelta, timezone
 
@@ -354,6 +355,127 @@ def test_round_trip_of_text_and_numbers(tmp_path_factory, text, hs_deg, eye):
     back = load_log(p).entry_by_id(e.id)
     assert back.to_dict() == e.to_dict()
     assert back["note"] == text[:1000] and back["hs_deg"] == hs_deg and back["eye_height_m"] == eye
+
+
+# ---------------------------------------------------------------- the log's clock and uid
+
+T0 = datetime(2026, 3, 20, 8, 0, tzinfo=UTC)          # an invented passage's morning
+
+
+class Steps:
+    """A clock for these tests: T0, then one minute later at every call; counts its calls."""
+
+    def __init__(self):
+        self.calls = 0
+
+    def __call__(self) -> datetime:
+        self.calls += 1
+        return T0 + timedelta(minutes=self.calls - 1)
+
+
+def test_a_given_clock_stamps_every_logged_utc(path):
+    # The format's rule (common practice, no source): logged_utc is when the entry was written,
+    # so the clock is read once per entry, in file order, batches included.
+    clock = Steps()
+    with new_log(path, "Kittiwake (invented)", "clock test", clock=clock) as lg:
+        s = lg.append(sight())
+        batch = lg.append_many([sight(body="Venus"), {"kind": "note", "text": "in one batch"}])
+        lg.strike(s.id, "wrong body")
+        lg.correct(batch[0].id, "misread the drum", {"hs": "34 21.3", "hs_deg": 34.355})
+    want = [f"2026-03-20T08:0{m}:00Z" for m in range(6)]
+    assert [o["logged_utc"] for o in lines_of(path)] == want and clock.calls == 6
+    assert [e.logged_utc for e in load_log(path).entries] == want
+    with PassageLog.open(path, clock=lambda: T0 + timedelta(hours=1)) as lg:   # reopened
+        assert lg.append({"kind": "note", "text": "later"}).logged_utc == "2026-03-20T09:00:00Z"
+
+
+def test_a_clock_in_another_zone_is_written_in_utc_to_the_second(path):
+    zone = timezone(timedelta(hours=-3))
+    with new_log(path, "Kittiwake (invented)", "zone test",
+                 clock=lambda: datetime(2026, 3, 20, 5, 0, 0, 600_000, tzinfo=zone)):
+        pass
+    # 05:00:00.6 at -03:00 is 08:00:00.6 UTC (ISO 8601 offsets); logged to the nearest second,
+    # as nav.timekeeping.format_utc writes every logged_utc (common practice, no source)
+    assert lines_of(path)[0]["logged_utc"] == "2026-03-20T08:00:01Z"
+
+
+def test_the_repair_of_a_torn_tail_is_stamped_by_the_clock(path):
+    write_log(path, GOOD, raw_tail=b'{"id": "e0003", "ki')
+    with PassageLog.open(path, clock=lambda: T0 + timedelta(hours=2)) as lg:
+        (repair,) = lg.effective_entries("repair")
+        assert repair.logged_utc == "2026-03-20T10:00:00Z"
+        assert lg.set_aside.name == path.name + ".torn-20260320T100000Z"   # the same instant
+
+
+@pytest.mark.parametrize("value, words", [
+    (datetime(2026, 3, 20, 8, 0), "without a time zone"),           # naive
+    ("2026-03-20T08:00:00Z", "a str"),
+    (1774000000.0, "a float"),
+])
+def test_a_clock_that_gives_no_aware_datetime_is_refused(tmp_path, value, words):
+    p = tmp_path / "p.jsonl"
+    with pytest.raises(NavInputError) as err:
+        new_log(p, "Petrel (invented)", "t", clock=lambda: value)
+    assert err.value.field == "clock" and words in str(err.value)
+    assert "aware UTC datetime" in str(err.value) and "tzinfo=timezone.utc" in str(err.value)
+    assert not p.exists()                                          # no header without a time
+
+
+def test_a_naive_clock_refuses_the_append_and_writes_nothing(path, log):
+    log.close()
+    before = path.read_bytes()
+    with PassageLog.open(path, clock=lambda: datetime(2026, 3, 20, 9, 0)) as lg:
+        for attempt in (lambda: lg.append(sight()), lambda: lg.append_many([sight()] * 2)):
+            with pytest.raises(NavInputError) as err:
+                attempt()
+            assert err.value.field == "clock" and "without a time zone" in str(err.value)
+        assert lg.next_id() == "e0002"
+    assert path.read_bytes() == before
+    with pytest.raises(NavInputError, match="must be callable") as err:
+        PassageLog.open(path, clock=T0)
+    assert err.value.field == "clock"
+    PassageLog.open(path).close()            # the refused open left no lock behind
+
+
+def test_without_a_clock_the_wall_clock_is_used(path):
+    before = datetime.now(UTC)
+    with new_log(path, "Kittiwake (invented)", "wall clock") as lg:
+        first = lg.append(sight())
+    with PassageLog.open(path) as lg:        # the clock is not kept in the file
+        second = lg.append(sight())
+    after = datetime.now(UTC)
+    for stamp in (lines_of(path)[0]["logged_utc"], first.logged_utc, second.logged_utc):
+        t = datetime.fromisoformat(stamp.replace("Z", "+00:00"))
+        # to the nearest second (format_utc), so within half a second of the interval
+        assert before - timedelta(seconds=0.5) <= t <= after + timedelta(seconds=0.5), stamp
+    with new_log(path.with_name("fixed.jsonl"), "Kittiwake (invented)", "fixed", clock=Steps()):
+        pass
+    with PassageLog.open(path.with_name("fixed.jsonl")) as lg:
+        t = datetime.fromisoformat(lg.append(sight()).logged_utc.replace("Z", "+00:00"))
+        assert t >= before - timedelta(seconds=0.5)     # not the clock the log was made with
+
+
+def test_a_given_passage_uid_is_kept_and_checked_like_the_header(tmp_path):
+    with new_log(tmp_path / "a.jsonl", "Petrel (invented)", "t", passage_uid="0123456789abcdef",
+                 software="nav test writer") as lg:
+        assert lg.header["passage_uid"] == "0123456789abcdef"
+        assert lg.header["software"] == "nav test writer"
+    # the header schema: 16 lower-case hexadecimal digits (our format, common practice)
+    for bad, words in (("0123456789ABCDEF", "lower-case"), ("0123456789abcde", "16"),
+                       ("0123456789abcdeg", "hexadecimal"), ("0123456789abcdef0", "16"),
+                       ("", "16"), (123, "must be text")):
+        p = tmp_path / "b.jsonl"
+        with pytest.raises(NavInputError) as err:
+            new_log(p, "Petrel (invented)", "t", passage_uid=bad)
+        assert err.value.field == "passage_uid" and words in str(err.value)
+        assert "0123456789abcdef" in str(err.value)                    # an accepted example
+        assert not p.exists()
+    uids = []
+    for name in ("c.jsonl", "d.jsonl"):      # the default: random, 64 bits, so never the same
+        with new_log(tmp_path / name, "Petrel (invented)", "t") as lg:
+            uids.append(lg.header["passage_uid"])
+            assert lg.header["software"].startswith("nav ")
+    assert all(re.fullmatch("[0-9a-f]{16}", u) for u in uids) and uids[0] != uids[1]
 
 
 # ---------------------------------------------------------------- loading: errors with line numbers

@@ -24,10 +24,11 @@ is an observation. How the files are made:
 - **Fixes and running fixes** are computed by nav itself (:meth:`nav.passage.Passage.fix_from`
   on the log written so far) and logged as ``fix`` entries; the crew then steer for the next
   waypoint from the fix.
-- Entries are written in the log's own format (key order of :data:`nav.logbook.SCHEMA`) and the
-  finished file is read back with :func:`nav.logbook.load_log` (strict), so it passes the log's
-  own validation. ``logged_utc`` is derived from the scenario's times and ``passage_uid`` from
-  the scenario's name, so a rerun reproduces every byte.
+- Entries are written by the logbook itself (:func:`nav.logbook.new_log`, then its append,
+  strike and correct), so they are checked and spelt as every log is; the log is read back with
+  :func:`nav.logbook.load_log` (strict) before each fix. The log's clock is the scenario's
+  (:class:`ScenarioClock`: each entry's ``logged_utc`` follows the scenario's times) and the
+  ``passage_uid`` is derived from the scenario's name, so a rerun reproduces every byte.
 
 Writes (paths relative to the repository): ``sight_logs/demo-azores-madeira.jsonl`` (the log),
 ``.truth.csv`` (the true track), ``.sights-truth.csv`` (each sight's true position, Hc and the
@@ -41,7 +42,6 @@ import argparse
 import csv
 import hashlib
 import io
-import json
 import sys
 import tempfile
 from dataclasses import dataclass, field
@@ -58,7 +58,7 @@ from nav import __version__, almanac  # noqa: E402
 from nav.angles import parse_altitude, parse_lat, parse_lon  # noqa: E402
 from nav.corrections import correct_altitude  # noqa: E402
 from nav.fields import SIGHT_FIELD_BY_NAME, parse_height_m  # noqa: E402
-from nav.logbook import COMMON, FORMAT, FORMAT_VERSION, SCHEMA, load_log  # noqa: E402
+from nav.logbook import load_log, new_log  # noqa: E402
 from nav.meridian import local_apparent_noon  # noqa: E402
 from nav.passage import Passage  # noqa: E402
 from nav.reduction import hc_zn  # noqa: E402
@@ -191,7 +191,7 @@ class Truth:
         self._row(f"course {course:g} speed {speed:g} (steered)")
 
 
-# ---------------------------------------------------------------- the log, written deterministically
+# ---------------------------------------------------------------- the log, on the scenario's clock
 
 @dataclass
 class Settings:
@@ -217,65 +217,54 @@ class Settings:
         return parse_watch_error(self.watch, "watch_error")
 
 
-def _json_value(v):
-    if isinstance(v, datetime):
-        return format_utc(v)
-    if isinstance(v, float):
-        return v + 0.0
-    if isinstance(v, (list, tuple)):
-        return [_json_value(x) for x in v]
-    if isinstance(v, dict):
-        return {k: _json_value(x) for k, x in v.items() if x is not None}
-    return v
+class ScenarioClock:
+    """The log's clock: the scenario's time of the entry being written, to the second; it never
+    runs back (an entry is logged no earlier than the one before it)."""
 
+    def __init__(self, t0: datetime):
+        self.now = _second(t0)
 
-def _encode(o: dict, replacement_kind: str | None = None) -> bytes:
-    """One line in the log's format: keys in the order of COMMON then SCHEMA[kind]."""
-    order = (*COMMON, *SCHEMA[o["kind"]])
-    unknown = set(o) - set(order)
-    if unknown:
-        raise ValueError(f"not fields of a {o['kind']} entry: {sorted(unknown)}")
-    out = {k: o[k] for k in order if k in o}
-    if replacement_kind:
-        rep = o["replacement"]
-        out["replacement"] = {k: rep[k] for k in SCHEMA[replacement_kind] if k in rep}
-    return (json.dumps(out, ensure_ascii=False, allow_nan=False, separators=(", ", ": "))
-            + "\n").encode("utf-8")
+    def at(self, t: datetime) -> None:
+        self.now = max(self.now, _second(t))
+
+    def __call__(self) -> datetime:
+        return self.now
 
 
 class DemoLog:
-    """The log being written: ids in order, logged_utc from the scenario's clock."""
+    """The log being written, through nav.logbook, on the scenario's clock."""
 
     def __init__(self, tmp: Path):
-        self.lines: list[bytes] = []
-        self.kinds: dict[str, str] = {}
-        self.entries: dict[str, dict] = {}
-        self.last_logged = DEPART_UTC - timedelta(hours=1)
-        self._tmp = tmp / LOG_FILE
+        self.path = tmp / LOG_FILE
+        self.clock = ScenarioClock(DEPART_UTC - timedelta(hours=1))
         uid = hashlib.sha256(f"nav demo {NAME}".encode()).hexdigest()[:16]
-        self.add({"kind": "passage", "format": FORMAT, "format_version": FORMAT_VERSION,
-                  "passage_uid": uid, "vessel": VESSEL, "title": TITLE,
-                  "software": f"nav {__version__} (tools/make_demo_passage.py)"}, self.last_logged)
+        self.log = new_log(self.path, VESSEL, TITLE, clock=self.clock, passage_uid=uid,
+                           software=f"nav {__version__} (tools/make_demo_passage.py)")
 
     def add(self, entry: dict, logged: datetime) -> str:
-        eid = f"e{len(self.lines) + 1:04d}"
-        self.last_logged = max(self.last_logged, _second(logged))
-        o = {"id": eid, "kind": entry["kind"], "logged_utc": self.last_logged,
-             **{k: v for k, v in entry.items() if k != "kind"}}
-        o = _json_value(o)
-        target_kind = self.kinds[o["target"]] if o["kind"] == "correct" else None
-        self.lines.append(_encode(o, target_kind))
-        self.kinds[eid] = o["kind"]
-        self.entries[eid] = o
-        return eid
+        self.clock.at(logged)
+        return self.log.append(entry).id
+
+    def strike(self, target: str, reason: str, logged: datetime) -> str:
+        self.clock.at(logged)
+        return self.log.strike(target, reason).id
+
+    def correct(self, target: str, reason: str, changes: dict, logged: datetime) -> str:
+        self.clock.at(logged)
+        return self.log.correct(target, reason, changes).id
+
+    def entry(self, eid: str):
+        return self.log.entry_by_id(eid)
+
+    def close(self) -> None:
+        self.log.close()
 
     def data(self) -> bytes:
-        return b"".join(self.lines)
+        return self.path.read_bytes()
 
     def loaded(self):
-        """The log so far, read back strictly by the logbook (its own validation)."""
-        self._tmp.write_bytes(self.data())
-        return load_log(self._tmp)
+        """The log so far, read back from the file strictly by the logbook."""
+        return load_log(self.path)
 
     def passage(self) -> Passage:
         return Passage(self.loaded())
@@ -405,14 +394,13 @@ class Voyage:
 
     def correct_hs(self, eid: str, t: datetime) -> str:
         """The navigator corrects a sight typed wrongly: the Hs the sextant read."""
-        cur = {k: v for k, v in self.log.entries[eid].items() if k not in COMMON}
+        typed = self.log.entry(eid)["hs"]
         right = next(r["hs"] for r in self.sight_truth if r["id"] == eid)
-        reason = (f"Hs typed as {cur['hs']}; the sextant read {right} (the intercept of "
-                  f"{abs(parse_altitude(cur['hs'], 'hs') - parse_altitude(right, 'hs')) * 60:.0f} "
+        reason = (f"Hs typed as {typed}; the sextant read {right} (the intercept of "
+                  f"{abs(parse_altitude(typed, 'hs') - parse_altitude(right, 'hs')) * 60:.0f} "
                   "nmi gave it away)")
-        cur.update(hs=right, hs_deg=parse_altitude(right, "hs"))
-        return self.log.add({"kind": "correct", "target": eid, "reason": reason,
-                             "replacement": cur}, t)
+        return self.log.correct(eid, reason, {"hs": right, "hs_deg": parse_altitude(right, "hs")},
+                                t)
 
     # -- fixes
     def fix(self, ids: list[str], note: str, *, steer_after: bool = True,
@@ -523,11 +511,10 @@ def sail(tmp: Path) -> Voyage:
     ids, _ = v.twilight(day[0], evening=True, n=6, blunder_on=2)
     bad = ids[2]
     flagged, f = v.fix(ids, "evening stars and Venus: six lines", steer_after=False)
-    bad_body = v.log.entries[bad]["body"]
-    v.log.add({"kind": "strike", "target": flagged,
-               "reason": f"the {bad_body} line does not fit the other {len(ids) - 1} (flagged by "
-                         "the residual check): probably a misread minute; fixed again without "
-                         "it"}, f.utc + timedelta(minutes=7))
+    bad_body = v.log.entry(bad)["body"]
+    v.log.strike(flagged, f"the {bad_body} line does not fit the other {len(ids) - 1} (flagged by "
+                 "the residual check): probably a misread minute; fixed again without it",
+                 f.utc + timedelta(minutes=7))
     v.fix([i for i in ids if i != bad], f"evening stars without {bad_body}")
     v.steer(day[1].replace(hour=2, minute=10), (v.course + 10) % 360, 6.2,
             "wind backed to north-north-east in a squall: bore away 10 degrees")
@@ -639,10 +626,10 @@ def build() -> dict[str, bytes]:
     """Every generated file: {path relative to the repository: bytes}."""
     with tempfile.TemporaryDirectory(prefix="nav-demo-") as tmp:
         v = sail(Path(tmp))
-        log = v.log.loaded()
+        v.log.close()
+        log, log_bytes = v.log.loaded(), v.log.data()
         passage = Passage(log)
-    data = {LOG_FILE: v.log.data(), TRUTH_FILE: truth_csv(v), SIGHTS_TRUTH_FILE:
-            sights_truth_csv(v)}
+    data = {LOG_FILE: log_bytes, TRUTH_FILE: truth_csv(v), SIGHTS_TRUTH_FILE: sights_truth_csv(v)}
     out = {f"{d}/{name}": blob for d in OUTPUT_DIRS for name, blob in data.items()}
     fixes = [e for e in log.effective_entries("fix")]
     evening = next(f for f in fixes if f["utc"].startswith("2026-06-20T2"))
