@@ -29,9 +29,10 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as hst
 
-from nav.logbook import load_log, new_log
+from nav.logbook import load_log
 from nav.units import ARCMIN_DEG, NMI_M
 from references import star_skycoord
+from shell_driver import open_state, run_lines
 
 UTC = timezone.utc
 ARCMIN = ARCMIN_DEG
@@ -189,21 +190,9 @@ def history(tmp_path):
 @pytest.fixture
 def state(tmp_path):
     """A shell state on a new log, writing to a buffer (line by line, as the line mode does)."""
-    from nav.shell.state import ShellState
-
-    log = new_log(tmp_path / "state.jsonl", "Kestrel Dawn (invented)", "state test")
-    buf = StringIO()
-    st = ShellState(log, out=buf, err=buf, clock=clock)
-    st.buf = buf
+    st, log = open_state(tmp_path / "state.jsonl", "Kestrel Dawn (invented)", "state test", clock)
     yield st
     log.close()
-
-
-def run_lines(st, *lines: str) -> str:
-    start = st.buf.tell()
-    for line in lines:
-        assert st.dispatch(line) is True
-    return st.buf.getvalue()[start:]
 
 
 # ---------------------------------------------------------------- the user story

@@ -31,11 +31,12 @@ import numpy as np
 import pytest
 
 from nav.angles import parse_altitude, parse_lat, parse_lon
-from nav.logbook import load_log, new_log
+from nav.logbook import load_log
 from nav.timekeeping import UTC
 from nav.units import ARCMIN_DEG as ARCMIN
 from references import star_skycoord
 from references import mercator_sailing
+from shell_driver import open_state, run_lines
 
 PRINTED = 0.05 * ARCMIN                     # the shell prints angles to 0.1′
 INSTANT_TOL_S = 2.0                         # see the module docstring
@@ -122,21 +123,10 @@ def hs_from_airless(h_deg: float) -> float:
 
 @pytest.fixture
 def state(tmp_path):
-    from nav.shell.state import ShellState
-
-    log = new_log(tmp_path / "tern-reach.jsonl", "Tern Reach (invented)", "noon test")
-    buf = StringIO()
-    st = ShellState(log, out=buf, err=buf, clock=clock)
-    st.buf = buf
+    """A shell state on a new log, writing to a buffer (line by line, as the line mode does)."""
+    st, log = open_state(tmp_path / "tern-reach.jsonl", "Tern Reach (invented)", "noon test", clock)
     yield st
     log.close()
-
-
-def run_lines(st, *lines: str) -> str:
-    start = st.buf.tell()
-    for line in lines:
-        assert st.dispatch(line) is True
-    return st.buf.getvalue()[start:]
 
 
 def row(out: str, label: str) -> str:

@@ -43,23 +43,19 @@ def setting_lines(s) -> list[str]:
     ]
 
 
+_SETTING_WORDS = (  # field -> how the summary shows it
+    ("eye_height_m", lambda v: f"eye {v:.2f} m"),
+    ("index_error_arcmin", lambda v: f"IE {format_arcmin(v)}"),
+    ("watch_error_s", lambda v: f"watch {watch_text(v)}"),
+    ("zone_description_h", lambda v: f"zone {zone_text(v)}"),
+    ("temperature_c", lambda v: f"temp {v:g} °C"),
+    ("pressure_hpa", lambda v: f"pressure {v:g} hPa"),
+    ("horizon", lambda v: f"horizon {v}"),
+)
+
+
 def setting_summary(data) -> str:
-    bits = []
-    if "eye_height_m" in data:
-        bits.append(f"eye {data['eye_height_m']:.2f} m")
-    if "index_error_arcmin" in data:
-        bits.append(f"IE {format_arcmin(data['index_error_arcmin'])}")
-    if "watch_error_s" in data:
-        bits.append(f"watch {watch_text(data['watch_error_s'])}")
-    if "zone_description_h" in data:
-        bits.append(f"zone {zone_text(data['zone_description_h'])}")
-    if "temperature_c" in data:
-        bits.append(f"temp {data['temperature_c']:g} °C")
-    if "pressure_hpa" in data:
-        bits.append(f"pressure {data['pressure_hpa']:g} hPa")
-    if "horizon" in data:
-        bits.append(f"horizon {data['horizon']}")
-    return ", ".join(bits)
+    return ", ".join(show(data[name]) for name, show in _SETTING_WORDS if name in data)
 
 
 def run_set(st, req) -> None:
