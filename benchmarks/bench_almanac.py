@@ -35,6 +35,7 @@ sys.path.insert(0, str(REPO))
 
 from nav import almanac as al  # noqa: E402
 from nav.ephemeris import ephemeris, skyfield_time, timescale  # noqa: E402
+from timing import best_of
 
 HOURS_PER_YEAR = 8760
 TARGET_ALL_BODIES_S = 3.0
@@ -46,14 +47,6 @@ def hourly_year(year: int = 2026) -> np.ndarray:
     return start + np.arange(HOURS_PER_YEAR) * np.timedelta64(1, "h")
 
 
-def best_of(fn, repeats: int) -> float:
-    """Best wall time of `repeats` calls (the least disturbed by the rest of the machine)."""
-    times = []
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
 
 
 def nav_sun_year(t64):

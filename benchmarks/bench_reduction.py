@@ -40,6 +40,7 @@ sys.path.insert(0, str(REPO))
 
 from nav.almanac import PLANETS, almanac, body_names  # noqa: E402
 from nav.reduction import reduce_sight, reduce_sights  # noqa: E402
+from timing import best_of
 
 N_SIGHTS = 100_000
 TARGET_VECTOR_S = 2.0
@@ -105,13 +106,6 @@ def one_at_a_time(s: dict, idx: np.ndarray):
     return out
 
 
-def best_of(fn, repeats: int) -> float:
-    times = []
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
 
 
 def main(argv=None) -> int:
