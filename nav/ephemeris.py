@@ -4,10 +4,13 @@
   by path; we do not call ``skyfield_data.get_skyfield_data_path()``, because that also checks the
   expiry date of an Earth-orientation file (``finals2000A.all``) that nav never reads, and would warn
   a user about data we do not use.
-- UT1−UTC comes from ``nav/data/ut1_utc.csv``: the IERS Bulletin A table (measured values and
-  about a year of predictions), rebuilt by ``tools/build_ut1_table.py`` from the registry package
-  ``astropy-iers-data`` — newer than the table frozen inside skyfield. Leap seconds follow from its
-  jumps; outside the table skyfield's long-term ΔT model applies. No download, ever.
+- UT1−UTC and leap seconds come from the IERS files that the registry package
+  ``astropy-iers-data`` ships (``finals2000A.all``, ``Leap_Second.dat``), read at run time by
+  :mod:`nav.iers` — newer than the table frozen inside skyfield, refreshed by
+  ``pip install -U astropy-iers-data``. Outside the table skyfield's long-term ΔT model applies,
+  and :func:`ut1_status` says so. No download, ever.
+- Only the skyfield modules used are imported (never ``skyfield.api``, which pulls in the
+  downloader), and only on first use: importing this module imports numpy and nothing else.
 - Supported instants: 1900-01-01T00:00Z to 2050-12-31T23:59:59Z, inside DE421's coverage
   (1899-07-29 to 2053-10-09), so that light-time iterations never fall off the file's ends.
 """
@@ -43,36 +46,30 @@ def _de421_path() -> str:
     return path
 
 
-UT1_TABLE = "ut1_utc.csv"
+def ut1_status(utc):
+    """How well UT1 is known at `utc` (the latest of many): see :func:`nav.iers.ut1_status`."""
+    from .iers import ut1_status as status
 
-
-def ut1_table() -> tuple[np.ndarray, np.ndarray, str]:
-    """(UTC MJD, UT1−UTC seconds, source line) from the bundled IERS table."""
-    from importlib.resources import files
-
-    text = files("nav.data").joinpath(UT1_TABLE).read_text(encoding="ascii")
-    source = text.split("\n", 1)[0].lstrip("# ")
-    table = np.loadtxt(text.splitlines(), delimiter=",", comments="#", skiprows=3)
-    return table[:, 0], table[:, 1], source
+    return status(utc)
 
 
 @functools.lru_cache(maxsize=None)
 def timescale():
-    """skyfield time scale on the bundled IERS UT1−UTC table, loaded once."""
-    from skyfield.data.iers import build_timescale_arrays
+    """skyfield time scale on the IERS data of astropy-iers-data, built once."""
     from skyfield.timelib import Timescale
 
-    mjd, dut1, _ = ut1_table()
-    daily_tt, daily_delta_t, leap_dates, leap_offsets = build_timescale_arrays(mjd, dut1)
-    return Timescale((daily_tt, daily_delta_t), leap_dates, leap_offsets)
+    from .iers import earth_orientation, timescale_arrays
+
+    eo = earth_orientation()
+    return Timescale(timescale_arrays(eo), eo.leap_dates_jd, eo.leap_offsets_s)
 
 
 @functools.lru_cache(maxsize=None)
 def ephemeris():
     """The DE421 kernel from skyfield-data, loaded once (memory-mapped by jplephem)."""
-    from skyfield.api import load_file
+    from skyfield.jpllib import SpiceKernel
 
-    kernel = load_file(_de421_path())
+    kernel = SpiceKernel(_de421_path())
     atexit.register(kernel.close)  # else `python -W error` reports the open file at exit
     return kernel
 

@@ -15,9 +15,8 @@ References (all from the package registry, all offline):
 Maximum differences observed when these tests were written are noted beside each check; they are
 observations, not the expected values (those are the reference libraries' results).
 
-UT1. nav takes UT1-UTC from its bundled IERS Bulletin A table (nav/data/ut1_utc.csv, rebuilt by
-tools/build_ut1_table.py from the astropy-iers-data package), and astropy from the IERS-A file of
-the same package: the GHA comparison therefore runs through 2026 (measured values to late October
+UT1. nav reads UT1-UTC from IERS Bulletin A (finals2000A.all as shipped by the astropy-iers-data
+package, read at run time by nav.iers), and astropy from the IERS-A file of the same package: the GHA comparison therefore runs through 2026 (measured values to late October
 2026). Before that table, nav used the one frozen inside skyfield, whose prediction was 0.2 s
 (0.05' of GHA) off the measured UT1 by December 2026: test_2026_gha_against_erfa guards that.
 """
