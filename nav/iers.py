@@ -150,7 +150,7 @@ def _error_s(eo: EarthOrientation, mjd: float) -> float:
     stated = eo.prediction_error_s
     if 1 <= d <= stated.size:
         return float(stated[d - 1])
-    return float(stated[-1]) + UT1_ERROR_GROWTH_S_PER_DAY * (mjd - eo.predicted_until_mjd)
+    return float(stated[-1]) + UT1_ERROR_GROWTH_S_PER_DAY * (d - stated.size)
 
 
 def _fmt_arcmin(x: float) -> str:

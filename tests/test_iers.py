@@ -141,3 +141,52 @@ def test_no_astropy_and_no_skyfield_api_at_run_time():
             "print(bad); sys.exit(1 if bad else 0)")
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
     assert run.returncode == 0, run.stdout + run.stderr
+
+
+# ---------------------------------------------------------------- the caution on every surface
+
+EXAMPLES = __import__("pathlib").Path(__file__).resolve().parents[1] / "examples"
+
+
+def _shifted(tmp_path, year_month_day: str):
+    # The invented evening-stars example (cutter Sula Brae), moved to another date.
+    text = (EXAMPLES / "evening-stars.csv").read_text().replace("2026-06-20", year_month_day)
+    path = tmp_path / "sights.csv"
+    path.write_text(text)
+    return str(path)
+
+
+def _run(capsys, argv):
+    import json
+
+    from nav.cli import main
+
+    main(argv)
+    out = capsys.readouterr().out
+    return json.loads(out) if "--json" in argv else out
+
+
+def test_cli_says_nothing_inside_the_measured_values(tmp_path, capsys):
+    path = _shifted(tmp_path, "2026-06-20")
+    assert "UT1 caution" not in _run(capsys, ["reduce", path])
+    assert "UT1 caution" not in _run(capsys, ["fix", path])
+    assert "UT1 caution" not in _run(capsys, ["almanac", "Sun", "--utc", "2026-06-20T12:00Z"])
+    assert all("warnings" not in d for d in
+               _run(capsys, ["almanac", "Sun", "--utc", "2026-06-20T12:00Z", "--json"]))
+
+
+def test_cli_reduce_fix_almanac_carry_the_caution_beyond_the_data(tmp_path, capsys):
+    path = _shifted(tmp_path, "2029-12-20")
+    message = ut1_status(datetime(2029, 12, 20, 21, 21, 58, tzinfo=UTC)).message
+    assert f"! {message}" in _run(capsys, ["reduce", path])
+    assert f"! {message}" in _run(capsys, ["fix", path])
+    sights = _run(capsys, ["reduce", path, "--json"])
+    assert all(any(w.startswith("UT1 caution") for w in s["warnings"]) for s in sights)
+    doc = _run(capsys, ["fix", path, "--json"])
+    assert any(w.startswith("UT1 caution") for w in doc["fix"]["warnings"])
+    text = _run(capsys, ["almanac", "Vega", "--utc", "2029-12-20T21:00Z"])
+    assert "UT1 caution" in text and "beyond the IERS predictions" in text
+    rows = _run(capsys, ["almanac", "Sun", "--from", "2026-06-20T00:00Z", "--to",
+                         "2029-12-20T00:00Z", "--step", "1d", "--json"])
+    flagged = [r["utc"][:10] for r in rows if "warnings" in r]
+    assert flagged[-1] == "2029-12-20" and "2026-06-20" not in flagged

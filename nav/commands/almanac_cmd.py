@@ -84,14 +84,24 @@ def run(args) -> int:
 
     check_range(t64, "utc" if single else ("from" if t64[0] < np.datetime64("1900-01-01") else "to"))
     results = al.almanac(bodies, t64)
+    ut1 = _ut1_caution(t64)
     out = sys.stdout
     if args.json:
-        _write_json(out, results, t64)
+        _write_json(out, results, t64, ut1)
     elif single:
-        _write_single(out, results, t64[0])
+        _write_single(out, results, t64[0], ut1)
     else:
-        _write_table(out, results, t64)
+        _write_table(out, results, t64, ut1)
     return 0
+
+
+def _ut1_caution(t64):
+    """(message, mask of the instants it concerns), or (None, None) where UT1 is measured."""
+    from ..ephemeris import ut1_status
+    from ..iers import beyond_measured
+
+    message = ut1_status(t64).message
+    return (message, beyond_measured(t64)) if message else (None, None)
 
 
 def _row_dict(rec, i: int, utc: str) -> dict:
@@ -112,28 +122,37 @@ def _row_dict(rec, i: int, utc: str) -> dict:
     return d
 
 
-def _write_json(out, results, t64) -> None:
+def _write_json(out, results, t64, ut1) -> None:
     utcs = utc_strings(t64)
+    message, mask = ut1
     out.write("[")
     first = True
     for i, utc in enumerate(utcs):
         for rec in results:
-            out.write(("\n  " if first else ",\n  ") + json.dumps(_row_dict(rec, i, utc)))
+            d = _row_dict(rec, i, utc)
+            if message and (mask is None or mask[i]):
+                d["warnings"] = [message]
+            out.write(("\n  " if first else ",\n  ") + json.dumps(d, ensure_ascii=False))
             first = False
     out.write("\n]\n")
 
 
-def _write_single(out, results, t) -> None:
-    out.write("\n".join(almanac_lines(results, t)) + "\n")
+def _write_single(out, results, t, ut1) -> None:
+    lines = almanac_lines(results, t)
+    if ut1[0]:
+        lines[-1:-1] = [f"! {ut1[0]}", ""]
+    out.write("\n".join(lines) + "\n")
 
 
-def _write_table(out, results, t64) -> None:
+def _write_table(out, results, t64, ut1) -> None:
     utcs = utc_strings(t64)
     out.write(f"{'UTC':<21}{'GHA Aries':<11}" + ALMANAC_HEADER.rstrip() + "\n")
     for i, utc in enumerate(utcs):
         aries = format_dm(float(results[0].gha_aries_deg[i]), deg_width=3, wrap360=True)
         for rec in results:
             out.write(f"{utc:<21}{aries:<11}" + almanac_cells(rec, i).rstrip() + "\n")
+    if ut1[0]:
+        out.write(f"\n! {ut1[0]}\n")
     out.write(f"\n{ALMANAC_NOTE} {CAUTION}\n")
 
 

@@ -85,15 +85,28 @@ def _setting_notes(row) -> dict:
             "temperature_c": row.temperature_c, "pressure_hpa": row.pressure_hpa}
 
 
+def _ut1_caution(red):
+    """The UT1 caution line for these sights' instants (None where UT1 is measured), and the
+    mask of the sights it concerns."""
+    from ..ephemeris import ut1_status
+    from ..iers import beyond_measured
+
+    message = ut1_status(red.utc).message
+    return (message, beyond_measured(red.utc)) if message else (None, None)
+
+
 def run_reduce(args) -> int:
     from ..render import reduction_dict, reduction_lines, sight_title
     rows, red = _reduce(args, _load(args), use_ap=args.ap)
+    ut1, ut1_mask = _ut1_caution(red)
     if args.json:
         out = []
         for i, row in enumerate(rows):
             d = reduction_dict(red.sight(i), row=row.row)
             d.update(dr_lat_deg=round(row.dr_lat_deg, 7), dr_lon_deg=round(row.dr_lon_deg, 7),
                      dr_given=row.dr_given)
+            if ut1 and ut1_mask[i]:
+                d["warnings"].append(ut1)
             out.append(d)
         json.dump(out, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
@@ -103,6 +116,9 @@ def run_reduce(args) -> int:
         print(sight_title(s, i + 1, row.row))
         for line in reduction_lines(s, **_setting_notes(row)):
             print(line)
+        print()
+    if ut1:
+        print(f"! {ut1}")
         print()
     print(CAUTION)
     return 0
@@ -121,6 +137,7 @@ def run_fix(args) -> int:
                             example="two or more rows of sights")
     result = fix_from_rows(rows, confidence=args.confidence, reductions=red)
     fix = result.fix
+    ut1, ut1_mask = _ut1_caution(red)
     if args.plot:
         from ..plotting import plot_fix_sheet
 
@@ -133,14 +150,20 @@ def run_fix(args) -> int:
             d["residual_nmi"] = round(fix.residuals_nmi[i], 4)
             d["flagged"] = bool(fix.flags[i])
             d["advanced_nmi"] = round(result.lops[i].advanced_nmi, 4)
+            if ut1 and ut1_mask[i]:
+                d["warnings"].append(ut1)
             sights.append(d)
-        doc = {"fix": fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
-               "sights": sights, "caution": CAUTION}
+        fix_doc = fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg)
+        if ut1:
+            fix_doc["warnings"].append(ut1)
+        doc = {"fix": fix_doc, "sights": sights, "caution": CAUTION}
         json.dump(doc, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
         return 0
     for line in fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg):
         print(line)
+    if ut1:
+        print(f"  ! {ut1}")
     if args.plot:
         print(f"  plotting sheet written to {args.plot}")
     print()
