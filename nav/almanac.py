@@ -27,16 +27,14 @@ from datetime import datetime, timedelta
 import numpy as np
 
 from .angles import asind, norm180, norm360
+from .apparent import AU_KM, C_AU_PER_DAY, SUN_SCHWARZSCHILD_AU  # noqa: F401  (named here too)
 from .errors import UnknownBodyError
 
 # ---------------------------------------------------------------- constants (named, with sources)
 
-AU_KM = 149_597_870.700            # IAU 2012 Resolution B2
-C_AU_PER_DAY = 173.144_632_674_240  # c = 299 792.458 km/s (SI), in AU/day
 EARTH_EQUATORIAL_RADIUS_KM = 6378.137  # WGS 84 / IERS
 SUN_RADIUS_KM = 696_000.0          # the solar radius behind the almanac's SD 15.99′ at 1 AU
 MOON_RADIUS_KM = 1737.4            # IAU mean radius of the Moon
-SUN_SCHWARZSCHILD_AU = 1.974_125_743_36e-8  # 2GM/c² of the Sun in AU (IAU SOFA, SRS)
 HIPPARCOS_EPOCH_TT_JD = 2_448_349.0625  # J1991.25 (ESA 1997, Hipparcos catalogue epoch)
 DAYS_PER_JULIAN_YEAR = 365.25
 MAS_TO_RAD = np.pi / (180 * 3600 * 1000)
@@ -122,76 +120,107 @@ class Instants:
     """Instants with their shared quantities computed once: Earth's state, ``M``, GAST.
 
     Build it from an aware ``datetime``, an array of ``datetime64`` (UTC), or a skyfield ``Time``.
+    The per-instant arrays (``tdb_parts``, ``earth_state``, ``sun_bcrs_au``, ``npb``,
+    ``gha_aries_1d``) always have the instants on their last axis, also for one instant.
     """
 
     def __init__(self, t, field: str = "utc"):
-        from skyfield.nutationlib import iau2000b_radians
-
         from .ephemeris import ephemeris, skyfield_time
+        from .nutation import nutation_radians
 
         self.time = t if hasattr(t, "tt") and hasattr(t, "ts") else skyfield_time(t, field)
         # Deliberate: IAU 2000B for nutation (see module docstring and tests).
-        self.time._nutation_angles_radians = iau2000b_radians(self.time)
+        self.time._nutation_angles_radians = nutation_radians(self.time)
         self.eph = ephemeris()
         self.scalar = self.time.shape == ()
 
     @functools.cached_property
-    def earth(self):
-        return self.eph["earth"].at(self.time)
+    def tdb_parts(self):
+        """TDB as a Julian date in two parts (whole, fraction), each (n,)."""
+        return (np.atleast_1d(np.asarray(self.time.whole, dtype=float)),
+                np.atleast_1d(np.asarray(self.time.tdb_fraction, dtype=float)))
+
+    @functools.cached_property
+    def earth_state(self):
+        """Earth's barycentric position (AU) and velocity (AU/day), each (3, n)."""
+        from .apparent import barycentric_state_au
+
+        return barycentric_state_au(self.eph, "earth", *self.tdb_parts)
 
     @functools.cached_property
     def sun_bcrs_au(self):
-        return self.eph["sun"].at(self.time).xyz.au
+        from .apparent import barycentric_au
+
+        return barycentric_au(self.eph, "sun", *self.tdb_parts)
+
+    @functools.cached_property
+    def earth(self):
+        """skyfield's Earth at these instants (used only for planetary magnitudes)."""
+        return self.eph["earth"].at(self.time)
+
+    @functools.cached_property
+    def gha_aries_1d(self):
+        from .nutation import gast_hours
+
+        return norm360(np.atleast_1d(gast_hours(self.time)) * 15.0)
 
     @functools.cached_property
     def gha_aries_deg(self):
-        return norm360(np.asarray(self.time.gast) * 15.0)
+        return self.gha_aries_1d[0] if self.scalar else self.gha_aries_1d
 
     @functools.cached_property
     def npb(self):
-        """Rotation from ICRS (GCRS) to the true equator and equinox of date, shape (3, 3[, n])."""
-        return self.time.M
+        """Rotation from ICRS (GCRS) to the true equator and equinox of date, shape (3, 3, n)."""
+        m = self.time.M
+        return m[:, :, None] if self.scalar else m
 
     @functools.cached_property
     def ut1_day_fraction(self):
         return np.remainder(np.asarray(self.time.ut1) + 0.5, 1.0)
 
 
-def _ra_dec_of_date(instants: Instants, xyz_icrs: np.ndarray):
-    """Rotate ICRS vectors (3, ..., n) to the true equator of date; RA, Dec in degrees."""
-    m = instants.npb
-    if instants.scalar:
-        v = np.einsum("ij,j...->i...", m, xyz_icrs)
-    else:
-        v = np.einsum("ijn,j...n->i...n", m, xyz_icrs)
-    x, y, z = v
-    ra = norm360(np.degrees(np.arctan2(y, x)))
-    dec = np.degrees(np.arctan2(z, np.hypot(x, y)))
-    return ra, dec
+def _one(instants: Instants, x):
+    return x[..., 0] if instants.scalar else x
 
 
-def _solar_body(instants: Instants, name: str) -> BodyAlmanac:
-    kind, target = SOLAR_BODIES[name]
-    astrometric = instants.earth.observe(instants.eph[target])
-    apparent = astrometric.apparent()
-    ra, dec = _ra_dec_of_date(instants, apparent.xyz.au)
-    dist_km = np.asarray(astrometric.distance().km)
+def _solar_places(instants: Instants, name: str, at=None):
+    """RA, Dec of date (degrees), distance (km), HP and SD (arcmin) of a solar-system body, at
+    every instant (`at` None) or at the instants `at` (indices, one per result)."""
+    from .apparent import ra_dec_of_date, solar_apparent
+
+    whole, frac = instants.tdb_parts
+    e_pos, e_vel = instants.earth_state
+    s_pos, npb = instants.sun_bcrs_au, instants.npb
+    if at is not None:
+        whole, frac, e_pos, e_vel = whole[at], frac[at], e_pos[:, at], e_vel[:, at]
+        s_pos, npb = s_pos[:, at], npb[:, :, at]
+    xyz, dist_au = solar_apparent(instants.eph, SOLAR_BODIES[name][1], whole, frac, e_pos, e_vel,
+                                  s_pos)
+    ra, dec = ra_dec_of_date(npb, xyz)
+    dist_km = dist_au * AU_KM
     hp = asind(EARTH_EQUATORIAL_RADIUS_KM / dist_km) * 60.0
     sd = None
     if name == "Sun":
         sd = asind(SUN_RADIUS_KM / dist_km) * 60.0
     elif name == "Moon":
         sd = asind(MOON_RADIUS_KM / dist_km) * 60.0
+    return ra, dec, dist_km, hp, sd
+
+
+def _solar_body(instants: Instants, name: str) -> BodyAlmanac:
+    kind, target = SOLAR_BODIES[name]
+    ra, dec, dist_km, hp, sd = (None if v is None else _one(instants, v)
+                                for v in _solar_places(instants, name))
     mag = None
     if kind == "planet":
         from skyfield.magnitudelib import planetary_magnitude
 
-        mag = np.asarray(planetary_magnitude(astrometric))
+        mag = np.asarray(planetary_magnitude(instants.earth.observe(instants.eph[target])))
         mag = mag[()] if mag.ndim == 0 else mag
     gha_aries = instants.gha_aries_deg
     return BodyAlmanac(
         body=name, kind=kind, gha_deg=norm360(gha_aries - ra), dec_deg=dec, ra_deg=ra,
-        sha_deg=norm360(360.0 - ra), gha_aries_deg=gha_aries, distance_km=dist_km[()] if dist_km.ndim == 0 else dist_km,
+        sha_deg=norm360(360.0 - ra), gha_aries_deg=gha_aries, distance_km=dist_km,
         hp_arcmin=hp, sd_arcmin=sd, magnitude=mag)
 
 
@@ -215,58 +244,66 @@ def _star_vectors():
     return pos, vel, index, np.array([r.hp_mag for r in recs])
 
 
-def _star_directions(instants: Instants, idx: np.ndarray) -> np.ndarray:
-    """Apparent geocentric unit vectors (ICRS axes) of the stars `idx`, shape (3, k[, n])."""
+def _star_places(instants: Instants, idx: np.ndarray, at=None):
+    """RA, Dec of date (degrees) of the stars `idx`: shape (k, n) at every instant (`at` None),
+    or (m,) for star idx[i] at instant at[i]."""
+    from .apparent import ra_dec_of_date, star_apparent
+
     pos, vel, _, _ = _star_vectors()
-    pos, vel = pos[:, idx], vel[:, idx]
-    t_tdb = np.asarray(instants.time.tdb)
-    e_pos = instants.earth.xyz.au                   # (3[, n])
-    e_vel = instants.earth.velocity.au_per_d        # (3[, n])
-    s_pos = instants.sun_bcrs_au
-    dt = t_tdb - HIPPARCOS_EPOCH_TT_JD
-    if instants.scalar:
-        star = pos + vel * dt                       # (3, k)
-        e_pos_b, e_vel_b, s_pos_b = e_pos[:, None], e_vel[:, None], s_pos[:, None]
-    else:
-        star = pos[:, :, None] + vel[:, :, None] * dt[None, None, :]  # (3, k, n)
-        e_pos_b, e_vel_b, s_pos_b = e_pos[:, None, :], e_vel[:, None, :], s_pos[:, None, :]
-    p = star - e_pos_b
-    p = p / np.sqrt(np.sum(p * p, axis=0))
-    # Light deflection by the Sun (IAU SOFA eraLdsun -> eraLd with q = p for a distant source).
-    e = e_pos_b - s_pos_b
-    em = np.sqrt(np.sum(e * e, axis=0))
-    e = e / em
-    dlim = 1e-6 / np.maximum(em * em, 1.0)
-    qpe = p + e
-    qdqpe = np.sum(p * qpe, axis=0)
-    w = SUN_SCHWARZSCHILD_AU / em / np.maximum(qdqpe, dlim)
-    eq = np.cross(e, p, axis=0)
-    peq = np.cross(p, eq, axis=0)
-    p = p + w * peq
-    # Annual aberration, relativistic (IAU SOFA eraAb).
-    v = e_vel_b / C_AU_PER_DAY
-    v = np.broadcast_to(v, p.shape)
-    bm1 = np.sqrt(1.0 - np.sum(v * v, axis=0))
-    pdv = np.sum(p * v, axis=0)
-    w1 = 1.0 + pdv / (1.0 + bm1)
-    w2 = SUN_SCHWARZSCHILD_AU / em
-    p = p * bm1 + w1 * v + w2 * (v - pdv * p)
-    return p / np.sqrt(np.sum(p * p, axis=0))
+    whole, frac = instants.tdb_parts
+    dt = (whole - HIPPARCOS_EPOCH_TT_JD) + frac
+    e_pos, e_vel = instants.earth_state
+    s_pos, npb = instants.sun_bcrs_au, instants.npb
+    if at is None:
+        xyz = star_apparent(pos[:, idx, None], vel[:, idx, None], dt, e_pos[:, None, :],
+                            e_vel[:, None, :], s_pos[:, None, :])       # (3, k, n)
+        return ra_dec_of_date(npb[:, :, None, :], xyz)
+    xyz = star_apparent(pos[:, idx], vel[:, idx], dt[at], e_pos[:, at], e_vel[:, at], s_pos[:, at])
+    return ra_dec_of_date(npb[:, :, at], xyz)
 
 
 def _stars_almanac(instants: Instants, names: list[str]) -> list[BodyAlmanac]:
     _, _, index, mags = _star_vectors()
     idx = np.array([index[n] for n in names])
-    ra, dec = _ra_dec_of_date(instants, _star_directions(instants, idx))
+    ra, dec = _star_places(instants, idx)
     gha_aries = instants.gha_aries_deg
     out = []
     for k, name in enumerate(names):
-        ra_k, dec_k = ra[k], dec[k]
+        ra_k, dec_k = _one(instants, ra[k]), _one(instants, dec[k])
         out.append(BodyAlmanac(
-            body=name, kind="star", gha_deg=norm360(gha_aries - ra_k), dec_deg=dec_k[()] if np.ndim(dec_k) == 0 else dec_k,
+            body=name, kind="star", gha_deg=norm360(gha_aries - ra_k), dec_deg=dec_k,
             ra_deg=ra_k, sha_deg=norm360(360.0 - ra_k), gha_aries_deg=gha_aries, distance_km=None,
             hp_arcmin=None, sd_arcmin=None, magnitude=float(mags[index[name]])))
     return out
+
+
+def places_at(names: np.ndarray, instants: Instants, at: np.ndarray):
+    """GHA, Dec (degrees), HP and SD (arcmin, NaN where none) of body names[i] at instant at[i].
+
+    `names`: canonical names (object array); `at`: indices into `instants`. One pass for all the
+    stars, one per solar-system body: the work done is per (body, instant) pair, not per body
+    times every instant.
+    """
+    n = names.size
+    gha, dec = np.empty(n), np.empty(n)
+    hp, sd = np.full(n, np.nan), np.full(n, np.nan)
+    aries = instants.gha_aries_1d
+    is_star = ~np.isin(names, list(SOLAR_BODIES))
+    if is_star.any():
+        _, _, index, _ = _star_vectors()
+        sel = np.flatnonzero(is_star)
+        lookup = {name: index[name] for name in dict.fromkeys(names[sel].tolist())}
+        idx = np.array([lookup[b] for b in names[sel].tolist()], dtype=int)
+        ra, dec[sel] = _star_places(instants, idx, at[sel])
+        gha[sel] = norm360(aries[at[sel]] - ra)
+    for name in SOLAR_BODIES:
+        sel = np.flatnonzero(names == name)
+        if sel.size:
+            ra, dec[sel], _, hp[sel], body_sd = _solar_places(instants, name, at[sel])
+            gha[sel] = norm360(aries[at[sel]] - ra)
+            if body_sd is not None:
+                sd[sel] = body_sd
+    return gha, dec, hp, sd
 
 
 def almanac(bodies, t, field: str = "utc") -> list[BodyAlmanac]:

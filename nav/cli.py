@@ -1,8 +1,9 @@
 """The `nav` command line: one argparse parser, one module per group of subcommands.
 
 Each module in ``nav.commands`` exposes ``register(subparsers)``, which adds its subcommands and
-sets ``func`` on them. Heavy modules (matplotlib, prompt_toolkit) are imported inside the command
-that needs them, so ``nav almanac`` starts fast.
+sets ``func`` on them. Registering imports no heavy module: numpy, skyfield, matplotlib and
+prompt_toolkit are imported inside the command that needs them (a test checks it), so ``nav
+--version`` and ``nav --help`` start at once and ``nav almanac`` loads only what it uses.
 """
 
 from __future__ import annotations
@@ -50,6 +51,11 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: list[str] | None = None) -> int:
     argv = sys.argv[1:] if argv is None else argv
+    if argv == ["--version"]:  # answered before the subcommands are registered: start-up only
+        from . import __version__
+
+        print(f"nav {__version__}")
+        return EXIT_OK
     parser = build_parser()
     args = parser.parse_args(argv)
     if not getattr(args, "func", None):

@@ -81,6 +81,10 @@ def _data_file(name: str):
     return files("astropy_iers_data").joinpath("data", name)
 
 
+def _has_measured(text: bytes) -> bool:
+    return any(line[_FLAG_COL:_FLAG_COL + 1] == b"I" for line in text.splitlines())
+
+
 def _mjd_date(mjd: float) -> date:
     return MJD_EPOCH + timedelta(days=int(mjd))
 
@@ -97,7 +101,11 @@ def earth_orientation() -> EarthOrientation:
     mjd, dut1 = np.asarray(finals["utc_mjd"]), np.asarray(finals["dut1"])
     measured = mjd[0] - 1.0
     errors = []
-    for line in reversed(raw.splitlines()):   # the flags and errors, from the file's end
+    # The flags and errors of the predictions, read backwards from the file's end (about a year
+    # of predictions: a tail of 1000 lines holds them, else the whole file is read).
+    tail = raw[-1000 * 190:]
+    lines = tail.splitlines() if tail.count(b"\n") and _has_measured(tail) else raw.splitlines()
+    for line in reversed(lines):
         flag = line[_FLAG_COL:_FLAG_COL + 1]
         if flag == b"P":
             errors.append(float(line[_ERR_COLS]))

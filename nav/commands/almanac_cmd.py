@@ -5,13 +5,11 @@ from __future__ import annotations
 import json
 import sys
 
-import numpy as np
-
 from .. import CAUTION
-from ..angles import format_dm
 from ..errors import NavInputError
-from ..render import ALMANAC_HEADER, ALMANAC_NOTE, almanac_cells, almanac_lines, utc_strings
-from ..timekeeping import ISO_EXAMPLE, parse_duration, parse_utc, time_range
+
+# numpy, the almanac and the renderers are imported inside the command, so that registering it
+# (every `nav` start, `nav --version` included) imports neither numpy nor skyfield.
 
 MAX_ROWS = 2_000_000
 GROUPS = {
@@ -34,7 +32,8 @@ def register(sub) -> None:
                     "instant (--utc) or as a table (--from/--to/--step). Times are ISO 8601 with "
                     "Z or an offset.")
     p.add_argument("bodies", nargs="+", metavar="BODY")
-    p.add_argument("--utc", help=f"one instant, e.g. {ISO_EXAMPLE}")
+    p.add_argument("--utc", help="one instant, e.g. 2026-03-20T18:42:10Z or "
+                                 "2026-03-20T15:42:10-03:00")
     p.add_argument("--from", dest="start", help="first instant of a table")
     p.add_argument("--to", dest="stop", help="last instant of a table (inclusive)")
     p.add_argument("--step", default="1h", help="table step: 30s, 10min, 1h, 1d (default 1h)")
@@ -43,6 +42,8 @@ def register(sub) -> None:
 
 
 def _instants(args):
+    from ..timekeeping import parse_duration, parse_utc
+
     if args.utc and (args.start or args.stop):
         raise NavInputError("give either --utc or --from/--to, not both", field="utc",
                             example="--utc 2026-03-20T18:42:10Z")
@@ -66,6 +67,10 @@ def _expand_bodies(names: list[str]) -> list[str]:
 
 
 def run(args) -> int:
+    import numpy as np
+
+    from ..timekeeping import time_range
+
     bodies = _expand_bodies(args.bodies)
     when, single = _instants(args)
     if single:
@@ -105,6 +110,8 @@ def _ut1_caution(t64):
 
 
 def _row_dict(rec, i: int, utc: str) -> dict:
+    import numpy as np
+
     d = {"body": rec.body, "utc": utc, "gha_deg": round(float(rec.gha_deg[i]), 7),
          "dec_deg": round(float(rec.dec_deg[i]), 7)}
     if rec.kind == "star":
@@ -123,6 +130,8 @@ def _row_dict(rec, i: int, utc: str) -> dict:
 
 
 def _write_json(out, results, t64, ut1) -> None:
+    from ..render import utc_strings
+
     utcs = utc_strings(t64)
     message, mask = ut1
     out.write("[")
@@ -138,6 +147,8 @@ def _write_json(out, results, t64, ut1) -> None:
 
 
 def _write_single(out, results, t, ut1) -> None:
+    from ..render import almanac_lines
+
     lines = almanac_lines(results, t)
     if ut1[0]:
         lines[-1:-1] = [f"! {ut1[0]}", ""]
@@ -145,6 +156,9 @@ def _write_single(out, results, t, ut1) -> None:
 
 
 def _write_table(out, results, t64, ut1) -> None:
+    from ..angles import format_dm
+    from ..render import ALMANAC_HEADER, ALMANAC_NOTE, almanac_cells, utc_strings
+
     utcs = utc_strings(t64)
     out.write(f"{'UTC':<21}{'GHA Aries':<11}" + ALMANAC_HEADER.rstrip() + "\n")
     for i, utc in enumerate(utcs):
