@@ -84,6 +84,15 @@ BODY_KINDS = ("sun", "moon", "planet", "star")
 _SD_SIGN = {"lower": 1.0, "upper": -1.0, "center": 0.0}
 
 
+def _limb_signs(limbs: np.ndarray) -> np.ndarray:
+    """+1 lower, −1 upper, 0 center, for an array of parsed limb words."""
+    sign = np.zeros(limbs.shape)
+    for word, value in _SD_SIGN.items():
+        if value:
+            sign[limbs == word] = value
+    return sign
+
+
 def _cot_deg(x_deg):
     return np.asarray(cosd(x_deg)) / np.asarray(sind(x_deg))
 
@@ -148,7 +157,20 @@ def _words(values, parse, field, shape, default=None):
     arr = np.broadcast_to(np.asarray(values, dtype=object), shape)
     flat = arr.ravel()
     out = np.empty(flat.shape, dtype=object)
-    cache: dict = {}
+    words = flat.tolist()
+    distinct = set(words)
+    if len(distinct) <= 8:    # the usual case: a few words, each parsed once, then filled in
+        try:
+            cache = {w: default if w is None else parse(w, field) for w in distinct}
+        except NavInputError:
+            cache = None      # the loop below names the first bad row
+        if cache is not None:
+            if len(cache) == 1:
+                out[:] = cache[words[0]]
+            else:
+                out[:] = [cache[w] for w in words]
+            return out.reshape(shape)
+    cache = {}
     for i, w in enumerate(flat):
         if w is None:
             out[i] = default
@@ -323,7 +345,7 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
     hor = _words(horizon, parse_horizon, "horizon", shape, default="sea")
     has_limb = kind in ("sun", "moon")
     limbs = _words(limb, parse_limb, "limb", shape, default="lower")
-    sign = np.vectorize(_SD_SIGN.get, otypes=[float])(limbs) if has_limb else np.zeros(shape)
+    sign = _limb_signs(limbs) if has_limb else np.zeros(shape)
     if not has_limb:
         limbs = np.full(shape, None, dtype=object)
 
@@ -389,25 +411,29 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
 
 
 def _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat) -> list[tuple[str, ...]]:
-    """One tuple of messages per element (C order)."""
+    """One tuple of messages per element (C order); messages are built only where flagged."""
     n = int(np.prod(shape))
     ha, ie, eye, sea = (np.broadcast_to(v, shape).ravel() for v in (ha, ie, eye, sea))
-    out: list[tuple[str, ...]] = []
-    for i in range(n):
+    low = ha < LOW_ALTITUDE_DEG
+    big_ie = np.abs(ie) > LARGE_INDEX_ERROR_ARCMIN
+    no_dip = sea & (eye == 0.0)
+    common = []
+    if kind == "planet" and hp_arcmin is None:
+        common.append("no HP given for the planet: parallax not applied (up to 0.5′ for Venus)")
+    if kind == "moon" and lat is None:
+        common.append("Moon's parallax computed for a spherical Earth (no latitude given): "
+                      "up to 0.2′ off")
+    out: list[tuple[str, ...]] = [tuple(common)] * n
+    for i in np.flatnonzero(low | big_ie | no_dip):
         msgs = []
-        if ha[i] < LOW_ALTITUDE_DEG:
+        if low[i]:
             msgs.append(f"low altitude: Ha {format_dm(ha[i])} is below 5°, where refraction is "
                         "uncertain (more so in unusual weather); weigh this sight lightly")
-        if abs(ie[i]) > LARGE_INDEX_ERROR_ARCMIN:
+        if big_ie[i]:
             msgs.append(f"index error {ie[i]:+.1f}′ is unusually large: check that it is in "
                         "minutes of arc, and adjust the sextant")
-        if sea[i] and eye[i] == 0.0:
+        if no_dip[i]:
             msgs.append("height of eye is 0 m, so no dip was applied: give the height of eye "
                         "for a sea-horizon sight")
-        if kind == "planet" and hp_arcmin is None:
-            msgs.append("no HP given for the planet: parallax not applied (up to 0.5′ for Venus)")
-        if kind == "moon" and lat is None:
-            msgs.append("Moon's parallax computed for a spherical Earth (no latitude given): "
-                        "up to 0.2′ off")
-        out.append(tuple(msgs))
+        out[i] = tuple(msgs + common)
     return out

@@ -258,58 +258,114 @@ def _check_instants(t64: np.ndarray, scalar: bool) -> None:
 
 
 def _almanac_per_sight(names: np.ndarray, t64: np.ndarray, share: bool | None):
-    """GHA, Dec, HP, SD per sight, one almanac call per body (or per set of bodies sharing instants).
+    """GHA, Dec, HP, SD per sight.
 
-    With `share` (chosen automatically when few distinct instants serve many bodies) one
-    :class:`Instants` holds every distinct instant and one call computes every body at all of
-    them; otherwise each body gets its own instants, and bodies whose instants coincide share.
+    The per-instant quantities (Earth's state, nutation and precession, GAST) are computed once
+    for every distinct instant of all the sights; then one pass serves all the star sights and
+    one pass each solar-system body's sights, each at its own instant only. `share` False
+    computes the per-instant quantities again for each body (kept to check that sharing them
+    changes nothing).
     """
-    from .almanac import Instants, almanac
+    from .almanac import Instants, places_at
 
-    n = names.size
-    gha, dec = np.empty(n), np.empty(n)
-    hp, sd = np.full(n, np.nan), np.full(n, np.nan)
-    bodies = list(dict.fromkeys(names.tolist()))
-    all_times, all_inv = np.unique(t64, return_inverse=True)
-    if share is None:
-        share = len(bodies) * all_times.size <= 2 * n
-    groups: dict[bytes, tuple[np.ndarray, list]] = {}
-    for b in bodies:
-        idx = np.flatnonzero(names == b)
-        if share:
-            times, inv = all_times, all_inv[idx]
-        else:
+    if share is False:
+        gha, dec = np.empty(names.size), np.empty(names.size)
+        hp, sd = np.full(names.size, np.nan), np.full(names.size, np.nan)
+        for b in dict.fromkeys(names.tolist()):
+            idx = np.flatnonzero(names == b)
             times, inv = np.unique(t64[idx], return_inverse=True)
-        groups.setdefault(times.tobytes(), (times, []))[1].append((b, idx, inv.ravel()))
-    for times, members in groups.values():
-        instants = Instants(times)
-        for (b, idx, inv), rec in zip(members, almanac([m[0] for m in members], instants)):
-            gha[idx] = np.asarray(rec.gha_deg)[inv]
-            dec[idx] = np.asarray(rec.dec_deg)[inv]
-            if rec.hp_arcmin is not None:
-                hp[idx] = np.asarray(rec.hp_arcmin)[inv]
-            if rec.sd_arcmin is not None:
-                sd[idx] = np.asarray(rec.sd_arcmin)[inv]
-    return gha, dec, hp, sd
+            gha[idx], dec[idx], hp[idx], sd[idx] = places_at(names[idx], Instants(times),
+                                                             inv.ravel())
+        return gha, dec, hp, sd
+    times, inv = np.unique(t64, return_inverse=True)
+    return places_at(names, Instants(times), inv.ravel())
 
 
-def reduce_sights(bodies, utc, hs_deg, *, limb=None, index_error_arcmin=0.0, eye_height_m=0.0,
-                  horizon="sea", temperature_c=10.0, pressure_hpa=1010.0, lat_deg, lon_deg,
-                  use_ap: bool = False, share_instants: bool | None = None) -> SightReductions:
-    """Almanac -> Hs to Ho -> Hc, Zn, intercept for many sights in one vectorised call.
-
-    `bodies`: names (any spelling nav accepts); `utc`: datetime64 (UTC) or aware datetimes;
-    every other input a scalar or a 1-D array, all broadcast together. `lat_deg`/`lon_deg` are
-    each sight's DR (also used for the Moon's parallax on the ellipsoid, with Zn from the DR).
-    `limb` None means lower for the Sun and Moon. With `use_ap` each sight is reduced from the
-    tables' AP (:func:`reduce_from_ap`), else from the DR. `share_instants` forces (True) or
-    forbids (False) one shared set of instants for all bodies (default: chosen by size).
-    Errors name the field and the sight's 1-based position in the input (``row``).
-    With all inputs scalar, every field of the result is a scalar.
-    """
+def _resolve_names(bodies: np.ndarray, scalar: bool):
+    """Canonical names and kinds, one lookup per distinct spelling (errors name the first row)."""
     from .almanac import SOLAR_BODIES, resolve_body
+
+    spellings = bodies.tolist()
+    resolved: dict = {}
+    for b in dict.fromkeys(spellings):
+        try:
+            resolved[b] = resolve_body(b)
+        except NavInputError as err:
+            raise (err if scalar else err.at_row(spellings.index(b) + 1)) from None
+    kinds = {k: (SOLAR_BODIES[v][0] if v in SOLAR_BODIES else "star") for k, v in resolved.items()}
+    names = np.empty(len(spellings), dtype=object)
+    kind = np.empty(len(spellings), dtype=object)
+    if len(resolved) == 1:
+        (b, v), = resolved.items()
+        names[:], kind[:] = v, kinds[b]
+    else:
+        names[:] = [resolved[b] for b in spellings]
+        kind[:] = [kinds[b] for b in spellings]
+    return names, kind
+
+
+# Sights reduced per chunk: bounds the working memory (about 1 kB a sight) for any input size.
+CHUNK_SIGHTS = 65_536
+_CORRECTION_FIELDS = ("index_arcmin", "dip_arcmin", "ha_deg", "refraction_arcmin", "sd_arcmin",
+                      "augmentation_arcmin", "parallax_arcmin", "ho_deg")
+
+
+def _reduce_chunk(flat: dict, lo: int, hi: int, use_ap: bool, share, scalar: bool):
+    """Reduce sights lo..hi-1 of the flattened inputs; errors name rows of the whole input."""
     from .corrections import correct_altitude
 
+    part = {k: v[lo:hi] for k, v in flat.items()}
+    n = hi - lo
+    try:
+        names, kinds = _resolve_names(part["bodies"], scalar)
+    except NavInputError as err:
+        if err.row is not None:
+            err.row += lo
+        raise
+    gha, dec, hp, alm_sd = _almanac_per_sight(names, part["utc"], share)
+    lat, lon = part["lat_deg"], part["lon_deg"]
+    _, zn_dr = hc_zn(lat, dec, norm360(gha + lon))
+
+    corr = {f: np.empty(n) for f in _CORRECTION_FIELDS}
+    limbs, horizons = np.empty(n, dtype=object), np.empty(n, dtype=object)
+    warnings: list = [()] * n
+    for kind in dict.fromkeys(kinds.tolist()):
+        idx = np.flatnonzero(kinds == kind)
+        try:
+            c = correct_altitude(
+                part["hs_deg"][idx], body_kind=kind, limb=part["limb"][idx],
+                index_error_arcmin=part["index_error_arcmin"][idx],
+                eye_height_m=part["eye_height_m"][idx], horizon=part["horizon"][idx],
+                temperature_c=part["temperature_c"][idx], pressure_hpa=part["pressure_hpa"][idx],
+                hp_arcmin=None if kind == "star" else hp[idx],
+                sd_arcmin=alm_sd[idx] if kind in ("sun", "moon") else None,
+                lat_deg=lat[idx], zn_deg=zn_dr[idx])
+        except NavInputError as err:
+            if scalar:
+                err.row = None
+            elif err.row is not None:
+                err.row = int(idx[err.row - 1]) + 1 + lo
+            raise
+        for f in _CORRECTION_FIELDS:
+            corr[f][idx] = getattr(c, f)
+        limbs[idx], horizons[idx] = c.limb, c.horizon
+        for j in np.flatnonzero([bool(w) for w in c.warnings]):   # only the flagged sights
+            warnings[idx[j]] = c.warnings[j]
+
+    red = (reduce_from_ap if use_ap else reduce_at)(corr["ho_deg"], gha, dec, lat, lon)
+    ho, x = corr["ho_deg"], np.asarray(red.intercept_nmi)
+    for i in np.flatnonzero((ho > HIGH_ALTITUDE_DEG) | (np.abs(x) > LARGE_INTERCEPT_NMI)):
+        warnings[i] = warnings[i] + reduction_warnings(ho[i], x[i])
+    return dict(
+        body=names, kind=kinds, limb=limbs, horizon=horizons, **corr, gha_deg=red.gha_deg,
+        dec_deg=red.dec_deg, hp_arcmin=hp, almanac_sd_arcmin=alm_sd, lat_deg=red.lat_deg,
+        lon_deg=red.lon_deg, lha_deg=red.lha_deg, hc_deg=red.hc_deg, zn_deg=red.zn_deg,
+        intercept_nmi=red.intercept_nmi), warnings
+
+
+def _prepare(bodies, utc, hs_deg, limb, index_error_arcmin, eye_height_m, horizon, temperature_c,
+             pressure_hpa, lat_deg, lon_deg):
+    """Inputs checked and flattened to 1-D arrays of one length: (flat, scalar, n)."""
     t64 = _utc64(utc)
     raw = {"bodies": np.asarray(bodies, dtype=object), "utc": t64,
            "limb": np.asarray(limb, dtype=object), "horizon": np.asarray(horizon, dtype=object)}
@@ -323,69 +379,66 @@ def reduce_sights(bodies, utc, hs_deg, *, limb=None, index_error_arcmin=0.0, eye
         raise ValueError("reduce_sights takes scalars or 1-D arrays of sights")
     n = int(np.prod(shape))
     flat = {k: np.broadcast_to(v, shape).reshape(n) for k, v in {**raw, **num}.items()}
-    t64 = flat["utc"]
-    _check_instants(t64, scalar)
+    _check_instants(flat["utc"], scalar)
     pick = (lambda a: a[0]) if scalar else (lambda a: a)  # a single sight's errors name no row
-    lat = _checked(pick(flat["lat_deg"]), "dr_lat", -90.0, 90.0, "41.2")
-    lon = _checked(pick(flat["lon_deg"]), "dr_lon", -360.0, 360.0, "-32.1")
+    _checked(pick(flat["lat_deg"]), "dr_lat", -90.0, 90.0, "41.2")
+    _checked(pick(flat["lon_deg"]), "dr_lon", -360.0, 360.0, "-32.1")
+    return flat, scalar, n
 
-    names = np.empty(n, dtype=object)
-    resolved: dict = {}
-    for i, b in enumerate(flat["bodies"]):
-        if b not in resolved:
-            try:
-                resolved[b] = resolve_body(b)
-            except NavInputError as err:
-                raise (err if scalar else err.at_row(i + 1)) from None
-        names[i] = resolved[b]
-    kinds = np.array([SOLAR_BODIES[m][0] if m in SOLAR_BODIES else "star" for m in names],
-                     dtype=object)
-    gha, dec, hp, alm_sd = _almanac_per_sight(names, t64, share_instants)
-    lat, lon = np.broadcast_to(lat, (n,)), np.broadcast_to(lon, (n,))
-    _, zn_dr = hc_zn(lat, dec, norm360(gha + lon))
 
-    fields = ("index_arcmin", "dip_arcmin", "ha_deg", "refraction_arcmin", "sd_arcmin",
-              "augmentation_arcmin", "parallax_arcmin", "ho_deg")
-    corr = {f: np.empty(n) for f in fields}
-    limbs, horizons = np.empty(n, dtype=object), np.empty(n, dtype=object)
-    corr_warnings: list = [()] * n
-    for kind in dict.fromkeys(kinds.tolist()):
-        idx = np.flatnonzero(kinds == kind)
+def iter_reduce_sights(bodies, utc, hs_deg, *, chunk: int = CHUNK_SIGHTS, **kw):
+    """:func:`reduce_sights` in chunks of `chunk` sights: yields (first index, SightReductions).
+
+    For inputs too large to hold every result at once (a million sights and more): memory stays
+    bounded by the chunk, whatever the input's length.
+    """
+    shape = np.broadcast_shapes(*(np.shape(v) for v in (bodies, utc, hs_deg, *kw.values())))
+    n = int(np.prod(shape))
+    for lo in range(0, n, chunk):
+        hi = min(n, lo + chunk)
+        pick = (lambda v: v[lo:hi] if np.ndim(v) else v)
+        args = {k: pick(v) for k, v in kw.items()}
         try:
-            c = correct_altitude(
-                flat["hs_deg"][idx], body_kind=kind, limb=flat["limb"][idx],
-                index_error_arcmin=flat["index_error_arcmin"][idx],
-                eye_height_m=flat["eye_height_m"][idx], horizon=flat["horizon"][idx],
-                temperature_c=flat["temperature_c"][idx], pressure_hpa=flat["pressure_hpa"][idx],
-                hp_arcmin=None if kind == "star" else hp[idx],
-                sd_arcmin=alm_sd[idx] if kind in ("sun", "moon") else None,
-                lat_deg=lat[idx], zn_deg=zn_dr[idx])
+            yield lo, reduce_sights(pick(bodies), pick(utc), pick(hs_deg), **args)
         except NavInputError as err:
-            if scalar:
-                err.row = None
-            elif err.row is not None:
-                err.row = int(idx[err.row - 1]) + 1
+            if err.row is not None:
+                err.row += lo
             raise
-        for f in fields:
-            corr[f][idx] = getattr(c, f)
-        limbs[idx], horizons[idx] = c.limb, c.horizon
-        for j, i in enumerate(idx):
-            corr_warnings[i] = c.warnings[j]
 
-    red = (reduce_from_ap if use_ap else reduce_at)(corr["ho_deg"], gha, dec, lat, lon)
-    warnings = tuple(w + reduction_warnings(ho, x)
-                     for w, ho, x in zip(corr_warnings, corr["ho_deg"], red.intercept_nmi))
-    result = dict(
-        body=names, kind=kinds, utc=t64, limb=limbs, horizon=horizons, hs_deg=flat["hs_deg"] + 0.0,
-        **corr, gha_deg=red.gha_deg, dec_deg=red.dec_deg, hp_arcmin=hp, almanac_sd_arcmin=alm_sd,
-        lat_deg=red.lat_deg, lon_deg=red.lon_deg, lha_deg=red.lha_deg, hc_deg=red.hc_deg,
-        zn_deg=red.zn_deg, intercept_nmi=red.intercept_nmi, dr_lat_deg=lat + 0.0,
-        dr_lon_deg=lon + 0.0)
-    result = {k: np.asarray(v) for k, v in result.items()}
+
+def reduce_sights(bodies, utc, hs_deg, *, limb=None, index_error_arcmin=0.0, eye_height_m=0.0,
+                  horizon="sea", temperature_c=10.0, pressure_hpa=1010.0, lat_deg, lon_deg,
+                  use_ap: bool = False, share_instants: bool | None = None) -> SightReductions:
+    """Almanac -> Hs to Ho -> Hc, Zn, intercept for many sights in one vectorised call.
+
+    `bodies`: names (any spelling nav accepts); `utc`: datetime64 (UTC) or aware datetimes;
+    every other input a scalar or a 1-D array, all broadcast together. `lat_deg`/`lon_deg` are
+    each sight's DR (also used for the Moon's parallax on the ellipsoid, with Zn from the DR).
+    `limb` None means lower for the Sun and Moon. With `use_ap` each sight is reduced from the
+    tables' AP (:func:`reduce_from_ap`), else from the DR. `share_instants` False computes the
+    per-instant quantities once per body instead of once for all sights (same numbers).
+    Errors name the field and the sight's 1-based position in the input (``row``).
+    With all inputs scalar, every field of the result is a scalar. Large inputs are worked in
+    chunks of :data:`CHUNK_SIGHTS` (see also :func:`iter_reduce_sights`).
+    """
+    flat, scalar, n = _prepare(bodies, utc, hs_deg, limb, index_error_arcmin, eye_height_m,
+                               horizon, temperature_c, pressure_hpa, lat_deg, lon_deg)
+    result: dict = {}
+    warnings: list = []
+    for lo in range(0, max(n, 1), CHUNK_SIGHTS):
+        hi = min(n, lo + CHUNK_SIGHTS)
+        part, w = _reduce_chunk(flat, lo, hi, use_ap, share_instants, scalar)
+        if not result:
+            result = {k: np.empty(n, dtype=np.asarray(v).dtype) for k, v in part.items()}
+        for k, v in part.items():
+            result[k][lo:hi] = v
+        warnings += w
+    result.update(utc=flat["utc"], hs_deg=flat["hs_deg"] + 0.0,
+                  dr_lat_deg=flat["lat_deg"] + 0.0, dr_lon_deg=flat["lon_deg"] + 0.0)
     if scalar:
         result = {k: v[0] for k, v in result.items()}
         return SightReductions(**result, from_ap=bool(use_ap), warnings=warnings[0])
-    return SightReductions(**result, from_ap=bool(use_ap), warnings=warnings)
+    return SightReductions(**result, from_ap=bool(use_ap), warnings=tuple(warnings))
 
 
 def reduce_sight(body, utc, hs_deg, *, limb=None, index_error_arcmin=0.0, eye_height_m=0.0,
