@@ -91,13 +91,18 @@ def _solar_lookup() -> dict[str, str]:
     return {k.lower(): k for k in SOLAR_BODIES}
 
 
+@functools.lru_cache(maxsize=4096)
+def _resolve_known(name: str) -> str:
+    return _stars().find_star(name).name
+
+
 def resolve_body(name: str, field: str = "body") -> str:
     """The canonical name of a body (case-insensitive; stars accept their usual spellings)."""
     key = str(name).strip().lower()
     if key in _solar_lookup():
         return _solar_lookup()[key]
     try:
-        return _stars().find_star(name).name
+        return _resolve_known(name) if isinstance(name, str) else _stars().find_star(name).name
     except UnknownBodyError as err:
         import difflib
 
@@ -171,8 +176,14 @@ class Instants:
     @functools.cached_property
     def npb(self):
         """Rotation from ICRS (GCRS) to the true equator and equinox of date, shape (3, 3, n)."""
-        m = self.time.M
-        return m[:, :, None] if self.scalar else m
+        from skyfield.framelib import ICRS_to_J2000 as bias
+
+        if self.scalar:
+            return self.time.M[:, :, None]
+        # N·P·B as one batched matrix product (skyfield's t.M, computed the same way).
+        n = np.moveaxis(self.time.nutation_matrix(), -1, 0)
+        p = np.moveaxis(self.time.precession_matrix(), -1, 0)
+        return np.moveaxis(n @ p @ bias, 0, -1)
 
     @functools.cached_property
     def ut1_day_fraction(self):
