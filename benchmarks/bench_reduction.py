@@ -1,24 +1,22 @@
-"""Speed of the whole sight-reduction chain, vectorised against one sight at a time.
+"""Speed of the whole sight-reduction chain (Hs to intercept) against the peers a user would pick.
 
 Prints figures; asserts nothing (speed is never asserted in the test suite). Run:
 
-    python benchmarks/bench_reduction.py              # about 10 s
-    python benchmarks/bench_reduction.py --quick      # one repeat, 100 sampled sights
-    python benchmarks/bench_reduction.py --profile    # and a cProfile of the vectorised call
+    python benchmarks/bench_reduction.py              # several minutes (astropy is slow at 100k)
+    python benchmarks/bench_reduction.py --quick      # 1k and 10k only, one repeat
+    python benchmarks/bench_reduction.py --profile    # and a cProfile of nav at 100k
 
-Case: 100,000 sights (fixed seed) of mixed bodies — Sun 30 %, Moon 10 %, the four planets 20 %,
-the navigational stars 40 % — at random instants over 2024-2027 and random positions, each body
-between 10° and 80° high, with random height of eye, index error, temperature, pressure and limb.
+Sights (fixed seed, benchmarks/peers.py): Sun 30 %, Moon 10 %, planets 20 %, stars 40 %, random
+instants over 2024-2027, each observer where the body is 10°-80° high.
 
-- nav, vectorised: one call of ``nav.reduction.reduce_sights`` for all 100,000 (almanac, Hs -> Ho,
-  Hc, Zn and intercept). Target: 2 s or less.
-- baseline, one sight at a time: ``nav.reduction.reduce_sight`` in a plain Python loop. The loop is
-  SAMPLED (500 sights by default, spread through the set) and its time scaled to 100,000; the
-  output says how many were sampled and by what factor it was scaled. Target: the vectorised call
-  50 times faster or more.
-
-Both are warmed up first (DE421, the time scale and the star table load on first use, as in any
-real run); each reports the best of 3 repeats (1 with --quick).
+1. nav (`reduce_sights`, one call) against, in the same run, each peer in its best form
+   (benchmarks/peers.py): skyfield vectorised per body with IAU 2000B, astropy AltAz vectorised per
+   body, an ephem per-sight loop; at 1,000 and 100,000 sights. Ratio = peer time / nav time.
+   Each peer's intercepts are compared with nav's (median and 99th percentile difference).
+2. nav alone at 1k, 10k, 100k and 1M sights, each in a fresh subprocess: wall time, the scaling
+   exponent (time ∝ n^k, k from 1k to 1M), and the peak memory that numpy and Python allocate
+   during the call (tracemalloc, in a second run) — for `reduce_sights` holding every result, and
+   for `iter_reduce_sights` streaming chunks (results consumed as they come).
 """
 
 from __future__ import annotations
@@ -26,143 +24,153 @@ from __future__ import annotations
 import argparse
 import cProfile
 import io
+import json
+import math
 import os
 import platform
 import pstats
+import subprocess
 import sys
 import time
+import warnings
 from pathlib import Path
 
 import numpy as np
 
-REPO = Path(__file__).resolve().parent.parent
+HERE = Path(__file__).resolve().parent
+REPO = HERE.parent
 sys.path.insert(0, str(REPO))
+sys.path.insert(0, str(HERE))
 
-from nav.almanac import PLANETS, almanac, body_names  # noqa: E402
-from nav.reduction import reduce_sight, reduce_sights  # noqa: E402
-from timing import best_of
+import peers  # noqa: E402
+from timing import best_of  # noqa: E402
 
-N_SIGHTS = 100_000
-TARGET_VECTOR_S = 2.0
-TARGET_RATIO = 50.0
-SEED = 1852
+TARGETS = {1_000: ("ephem per-sight loop", 2.0), 100_000: ("skyfield vectorised (2000B)", 3.0)}
+MEMORY_TARGET_MB = 150.0
 
 
-def make_sights(n: int, seed: int = SEED) -> dict:
-    """n plausible sights: each observer stands where the body is 10°-80° high (not timed)."""
-    rng = np.random.default_rng(seed)
-    stars = [b for b in body_names() if b not in ("Sun", "Moon", *PLANETS)]
-    kind = rng.choice(4, size=n, p=[0.3, 0.1, 0.2, 0.4])
-    bodies = np.where(kind == 0, "Sun", np.where(kind == 1, "Moon", np.where(
-        kind == 2, rng.choice(PLANETS, n), rng.choice(stars, n)))).astype(object)
-    start = np.datetime64("2024-01-01T00:00:00", "us")
-    span_us = int(4 * 365.25 * 86400e6)
-    t64 = start + rng.integers(0, span_us, n).astype("timedelta64[us]")
-    # The body's GP from the almanac, then an observer at zenith distance 90° − h from it
-    # in a random direction (spherical destination formula).
-    gha, dec = np.empty(n), np.empty(n)
-    for b in dict.fromkeys(bodies.tolist()):
-        idx = np.flatnonzero(bodies == b)
-        rec = almanac([b], t64[idx])[0]
-        gha[idx], dec[idx] = rec.gha_deg, rec.dec_deg
-    h = rng.uniform(10.0, 80.0, n)
-    bearing = np.radians(rng.uniform(0.0, 360.0, n))
-    zd, lat_gp, lon_gp = np.radians(90.0 - h), np.radians(dec), -gha
-    lat = np.arcsin(np.sin(lat_gp) * np.cos(zd) + np.cos(lat_gp) * np.sin(zd) * np.cos(bearing))
-    lon = lon_gp + np.degrees(np.arctan2(np.sin(bearing) * np.sin(zd) * np.cos(lat_gp),
-                                         np.cos(zd) - np.sin(lat_gp) * np.sin(lat)))
-    lat, lon = np.degrees(lat), (lon + 180.0) % 360.0 - 180.0
-    eye = rng.uniform(1.0, 15.0, n)
-    ie = rng.uniform(-3.0, 3.0, n)
-    disc = np.isin(bodies, ["Sun", "Moon"])
-    limb = np.where(disc, rng.choice(np.array(["lower", "upper"], dtype=object), n), None)
-    # Hs near what a sextant would read: + refraction and dip, − SD for a lower limb, − the
-    # Moon's parallax (rough figures; the intercepts come out within some miles).
-    refr = 1.0 / np.tan(np.radians(h + 7.31 / (h + 4.4))) / 60.0
-    sd = np.where(disc, 16.0 / 60.0, 0.0) * np.where(limb == "lower", 1.0, -1.0)
-    moon_par = np.where(bodies == "Moon", 57.0 / 60.0 * np.cos(np.radians(h)), 0.0)
-    hs = h + refr + 1.76 * np.sqrt(eye) / 60.0 + ie / 60.0 - sd - moon_par
-    return dict(bodies=bodies, utc=t64, hs_deg=hs, limb=limb, index_error_arcmin=ie,
-                eye_height_m=eye, temperature_c=rng.choice([-5.0, 10.0, 25.0], n),
-                pressure_hpa=rng.choice([990.0, 1010.0, 1030.0], n), lat_deg=lat, lon_deg=lon)
+def _offline_astropy():
+    from astropy.utils import iers
+    from astropy.utils.data import conf
+
+    iers.conf.auto_download = False
+    iers.conf.auto_max_age = None
+    conf.allow_internet = False
+    warnings.simplefilter("ignore")
 
 
-def vectorised(s: dict):
-    return reduce_sights(s["bodies"], s["utc"], s["hs_deg"], limb=s["limb"],
-                         index_error_arcmin=s["index_error_arcmin"], eye_height_m=s["eye_height_m"],
-                         temperature_c=s["temperature_c"], pressure_hpa=s["pressure_hpa"],
-                         lat_deg=s["lat_deg"], lon_deg=s["lon_deg"])
+def compare(n: int, repeats: int, with_astropy: bool) -> list[str]:
+    s = peers.make_sights(n)
+    small = peers.take(s, 50)
+    peers.nav_reduce(small)                       # warm-up: data loaded on first use
+    nav_x = peers.nav_reduce(s)
+    t_nav = best_of(lambda: peers.nav_reduce(s), repeats)
+    lines = [f"| nav `reduce_sights` | {t_nav:.3f} s | {t_nav / n * 1e6:.1f} µs | 1× | — |"]
+    best = None
+    for name, fn in peers.PEERS.items():
+        if name.startswith("astropy") and not with_astropy:
+            continue
+        fn(small)
+        x = fn(s)
+        t = best_of(lambda: fn(s), 1 if name.startswith("astropy") else repeats)
+        d = np.abs(x - nav_x)
+        lines.append(f"| {name} | {t:.3f} s | {t / n * 1e6:.1f} µs | {t / t_nav:.2f}× | "
+                     f"{np.median(d):.3f} / {np.percentile(d, 99):.3f} |")
+        best = min(best or (t, name), (t, name))
+    target = TARGETS.get(n)
+    if target:
+        peer_t = next(float(line.split("|")[2].split()[0]) for line in lines if target[0] in line)
+        ratio = peer_t / t_nav
+        lines.append(f"\ntarget at {n:,}: ≥ {target[1]:g}× faster than the {target[0]}: "
+                     f"{ratio:.2f}× — {'met' if ratio >= target[1] else 'MISSED'}")
+    lines.append(f"best peer at {n:,}: {best[1]}, {best[0] / t_nav:.2f}× nav's time")
+    return lines
 
 
-def one_at_a_time(s: dict, idx: np.ndarray):
-    out = []
-    for i in idx:
-        out.append(reduce_sight(
-            s["bodies"][i], s["utc"][i], float(s["hs_deg"][i]), limb=s["limb"][i],
-            index_error_arcmin=float(s["index_error_arcmin"][i]),
-            eye_height_m=float(s["eye_height_m"][i]), temperature_c=float(s["temperature_c"][i]),
-            pressure_hpa=float(s["pressure_hpa"][i]), lat_deg=float(s["lat_deg"][i]),
-            lon_deg=float(s["lon_deg"][i])))
+_CHILD = r"""
+import json, sys, time, tracemalloc
+sys.path[:0] = [{here!r}, {repo!r}]
+import numpy as np, peers
+from nav.reduction import reduce_sights, iter_reduce_sights
+n, mode = {n}, {mode!r}
+s = peers.make_sights(n)
+peers.nav_reduce(peers.take(s, 50))
+kw = {{k: s[k] for k in ("limb", "index_error_arcmin", "eye_height_m", "temperature_c",
+                        "pressure_hpa", "lat_deg", "lon_deg")}}
+def run():
+    if mode == "whole":
+        return float(np.sum(reduce_sights(s["bodies"], s["utc"], s["hs_deg"], **kw).intercept_nmi))
+    return sum(float(np.sum(r.intercept_nmi)) for _, r in iter_reduce_sights(s["bodies"], s["utc"], s["hs_deg"], **kw))
+t0 = time.perf_counter(); run(); wall = time.perf_counter() - t0
+tracemalloc.start(); run(); _, peak = tracemalloc.get_traced_memory(); tracemalloc.stop()
+inputs = sum(v.nbytes for v in s.values())
+print(json.dumps({{"wall": wall, "peak": peak, "inputs": inputs}}))
+"""
+
+
+def scaling(sizes, mode: str) -> dict:
+    out = {}
+    for n in sizes:
+        code = _CHILD.format(here=str(HERE), repo=str(REPO), n=n, mode=mode)
+        run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                             check=True)
+        out[n] = json.loads(run.stdout.strip().splitlines()[-1])
     return out
-
-
 
 
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--quick", action="store_true", help="one repeat, 100 sampled sights")
-    ap.add_argument("--sample", type=int, default=None, help="sights in the sampled loop (500)")
-    ap.add_argument("--profile", action="store_true", help="cProfile the vectorised call")
+    ap.add_argument("--quick", action="store_true", help="1k and 10k only, one repeat")
+    ap.add_argument("--profile", action="store_true", help="cProfile nav at 100k sights")
     args = ap.parse_args(argv)
+    _offline_astropy()
     repeats = 1 if args.quick else 3
-    sample = args.sample or (100 if args.quick else 500)
+    print(f"nav sight-reduction benchmark — Python {platform.python_version()} on "
+          f"{platform.machine()}, {os.cpu_count()} CPUs, numpy {np.__version__}; load average "
+          f"{os.getloadavg()[0]:.1f}")
+    for n in ((1_000, 10_000) if args.quick else (1_000, 100_000)):
+        print(f"\n### {n:,} mixed sights, Hs to intercept (best of {repeats})\n")
+        print("| case | time | per sight | time / nav's | Δ intercept vs nav, median / p99 (nmi) |")
+        print("| --- | --- | --- | --- | --- |")
+        for line in compare(n, repeats, with_astropy=True):
+            print(line)
 
-    t0 = time.perf_counter()
-    s = make_sights(N_SIGHTS)
-    setup_s = time.perf_counter() - t0
-    idx = np.linspace(0, N_SIGHTS - 1, sample).astype(int)
-    one_at_a_time(s, idx[:5])                       # warm-up: data loaded on first use
-    res = vectorised(s)
+    sizes = (1_000, 10_000) if args.quick else (1_000, 10_000, 100_000, 1_000_000)
+    print("\n### nav alone: scaling and peak memory (fresh subprocess per size)\n")
+    print("| sights | mode | wall | per sight | peak allocated during the call | inputs |")
+    print("| --- | --- | --- | --- | --- | --- |")
+    for mode in ("whole", "stream"):
+        res = scaling(sizes, mode)
+        for n, r in res.items():
+            print(f"| {n:,} | {mode} | {r['wall']:.2f} s | {r['wall'] / n * 1e6:.1f} µs | "
+                  f"{r['peak'] / 1e6:.0f} MB | {r['inputs'] / 1e6:.0f} MB |")
+        lo, hi = sizes[0], sizes[-1]
+        k = math.log(res[hi]["wall"] / res[lo]["wall"]) / math.log(hi / lo)
+        print(f"| {lo:,} → {hi:,} | {mode} | scaling exponent {k:.2f} (1 = linear) | | | |")
+        if hi >= 1_000_000:
+            peak = res[hi]["peak"] / 1e6
+            print(f"\nmemory target at {hi:,} ({mode}): peak ≤ {MEMORY_TARGET_MB:g} MB: {peak:.0f} MB — "
+                  f"{'met' if peak <= MEMORY_TARGET_MB else 'MISSED'}\n")
+    print("\nwall times depend on the machine and its load: compare the ratios of one run.")
+    print("'whole' holds every result (28 arrays of n values: 224 bytes a sight by itself);")
+    print("'stream' is iter_reduce_sights, each chunk consumed and dropped.")
 
-    t_vec = best_of(lambda: vectorised(s), repeats)
-    t_loop = best_of(lambda: one_at_a_time(s, idx), repeats)
-    scale = N_SIGHTS / sample
-    t_loop_all = t_loop * scale
-
-    # the two must agree (a fast wrong answer is no answer)
-    loop = one_at_a_time(s, idx[:50])
-    worst = max(abs(float(r.intercept_nmi) - float(res.intercept_nmi[i])) for r, i in zip(loop, idx))
-    counts = {k: int(np.sum(res.kind == k)) for k in ("sun", "moon", "planet", "star")}
-
-    print(f"nav sight-reduction benchmark — {platform.python_version()} on {platform.machine()}, "
-          f"{os.cpu_count()} CPUs, numpy {np.__version__}")
-    print(f"{N_SIGHTS:,} sights (seed {SEED}): " + ", ".join(f"{v:,} {k}" for k, v in counts.items())
-          + f"; {len(set(s['bodies'].tolist()))} bodies; instants 2024-2027; setup {setup_s:.1f} s "
-          "(not timed)")
-    print(f"median |intercept| {np.median(np.abs(res.intercept_nmi)):.1f} nmi; vectorised vs loop "
-          f"on 50 sights: largest difference {worst:.1e} nmi")
-    print()
-    print(f"| case | time for {N_SIGHTS:,} | per sight | target | ratio (loop / nav) |")
-    print("| --- | --- | --- | --- | --- |")
-    print(f"| nav, one `reduce_sights` call | {t_vec:.2f} s | {t_vec / N_SIGHTS * 1e6:.1f} µs | "
-          f"≤ {TARGET_VECTOR_S:g} s: {'met' if t_vec <= TARGET_VECTOR_S else 'MISSED'} | "
-          f"{t_loop_all / t_vec:.0f}× (target ≥ {TARGET_RATIO:g}×: "
-          f"{'met' if t_loop_all / t_vec >= TARGET_RATIO else 'MISSED'}) |")
-    print(f"| `reduce_sight` in a loop (sampled {sample}, scaled ×{scale:g}) | {t_loop_all:.1f} s | "
-          f"{t_loop / sample * 1e3:.2f} ms | — | 1× |")
-    print(f"\nbest of {repeats}; wall times depend on the machine and its load: compare ratios.")
-
-    if args.profile or t_vec > TARGET_VECTOR_S:
+    if args.profile:
+        s = peers.make_sights(100_000)
+        peers.nav_reduce(peers.take(s, 50))
         prof = cProfile.Profile()
         prof.enable()
-        vectorised(s)
+        peers.nav_reduce(s)
         prof.disable()
         buf = io.StringIO()
-        pstats.Stats(prof, stream=buf).sort_stats("cumulative").print_stats(25)
-        print("\ncProfile of the vectorised call (cumulative):")
+        pstats.Stats(prof, stream=buf).sort_stats("tottime").print_stats(20)
+        print("\ncProfile of nav at 100,000 sights (own time):")
         print(buf.getvalue())
     return 0
 
 
 if __name__ == "__main__":
-    sys.exit(main())
+    t0 = time.perf_counter()
+    code = main()
+    print(f"(benchmark ran {time.perf_counter() - t0:.0f} s)")
+    sys.exit(code)
