@@ -2,9 +2,9 @@
 
 In-process, tests/conftest.py refuses every socket connection. For a whole `nav almanac` process
 the guard is a sitecustomize module put first on PYTHONPATH: it installs an audit hook (PEP 578)
-that refuses every socket operation and every open of finals2000A.all (the Earth-orientation file
-skyfield-data ships and nav deliberately never reads, because skyfield-data warns that it has
-expired). The processes run with `-W error`, so any warning, at any time up to exit, shows.
+that refuses every socket operation and every open of skyfield-data's finals2000A.all (the
+Earth-orientation file skyfield-data ships and nav deliberately never reads, because skyfield-data
+warns that it has expired; nav reads the one astropy-iers-data ships). The processes run with `-W error`, so any warning, at any time up to exit, shows.
 Each guard is shown to bite (a control), so these tests can fail.
 """
 
@@ -35,7 +35,8 @@ GUARD = textwrap.dedent('''
         if event.startswith("socket.") or event.startswith("urllib."):
             sys.stderr.write(f"OFFLINE GUARD: {event}\\n")
             raise RuntimeError(f"network use refused by the offline guard: {event}")
-        if event == "open" and args and "finals2000A" in str(args[0]):
+        if (event == "open" and args and "finals2000A" in str(args[0])
+                and "skyfield_data" in str(args[0])):
             sys.stderr.write(f"OFFLINE GUARD: opened {args[0]}\\n")
             raise RuntimeError("finals2000A.all opened")
 
@@ -143,3 +144,16 @@ def test_astropy_is_offline_in_the_tests():
 
     assert iers.conf.auto_download is False
     assert data_conf.allow_internet is False
+
+
+def test_registering_the_commands_imports_nothing_heavy():
+    # `nav --version` and `nav --help` build the parser of every subcommand: that must not import
+    # numpy, skyfield, matplotlib or prompt_toolkit (they are imported inside the commands).
+    code = ("import sys; from nav.cli import build_parser; build_parser(); "
+            "heavy = [m for m in ('numpy', 'skyfield', 'matplotlib', 'prompt_toolkit', 'astropy')"
+            " if m in sys.modules]; print(heavy); sys.exit(1 if heavy else 0)")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=REPO)
+    assert proc.returncode == 0, proc.stdout + proc.stderr
+    proc = subprocess.run([sys.executable, "-m", "nav", "--version"], capture_output=True,
+                          text=True, cwd=REPO)
+    assert proc.returncode == 0 and proc.stdout.startswith("nav ")
