@@ -88,7 +88,7 @@ def compare(n: int, repeats: int, with_astropy: bool) -> list[str]:
 
 
 _CHILD = r"""
-import json, sys, time, tracemalloc
+import json, resource, sys, time, tracemalloc
 sys.path[:0] = [{here!r}, {repo!r}]
 import numpy as np, peers
 from nav.reduction import reduce_sights, iter_reduce_sights
@@ -101,10 +101,13 @@ def run():
     if mode == "whole":
         return float(np.sum(reduce_sights(s["bodies"], s["utc"], s["hs_deg"], **kw).intercept_nmi))
     return sum(float(np.sum(r.intercept_nmi)) for _, r in iter_reduce_sights(s["bodies"], s["utc"], s["hs_deg"], **kw))
+rss_before = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
 t0 = time.perf_counter(); run(); wall = time.perf_counter() - t0
+rss_after = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
 tracemalloc.start(); run(); _, peak = tracemalloc.get_traced_memory(); tracemalloc.stop()
 inputs = sum(v.nbytes for v in s.values())
-print(json.dumps({{"wall": wall, "peak": peak, "inputs": inputs}}))
+print(json.dumps({{"wall": wall, "peak": peak, "inputs": inputs, "rss_before": rss_before,
+                  "rss_after": rss_after}}))
 """
 
 
@@ -137,16 +140,18 @@ def main(argv=None) -> int:
 
     sizes = (1_000, 10_000) if args.quick else (1_000, 10_000, 100_000, 1_000_000)
     print("\n### nav alone: scaling and peak memory (fresh subprocess per size)\n")
-    print("| sights | mode | wall | per sight | peak allocated during the call | inputs |")
-    print("| --- | --- | --- | --- | --- | --- |")
+    print("| sights | mode | wall | per sight | peak allocated during the call | inputs | "
+          "process peak RSS before → after |")
+    print("| --- | --- | --- | --- | --- | --- | --- |")
     for mode in ("whole", "stream"):
         res = scaling(sizes, mode)
         for n, r in res.items():
             print(f"| {n:,} | {mode} | {r['wall']:.2f} s | {r['wall'] / n * 1e6:.1f} µs | "
-                  f"{r['peak'] / 1e6:.0f} MB | {r['inputs'] / 1e6:.0f} MB |")
+                  f"{r['peak'] / 1e6:.0f} MB | {r['inputs'] / 1e6:.0f} MB | "
+                  f"{r['rss_before'] / 1e6:.0f} → {r['rss_after'] / 1e6:.0f} MB |")
         lo, hi = sizes[0], sizes[-1]
         k = math.log(res[hi]["wall"] / res[lo]["wall"]) / math.log(hi / lo)
-        print(f"| {lo:,} → {hi:,} | {mode} | scaling exponent {k:.2f} (1 = linear) | | | |")
+        print(f"| {lo:,} → {hi:,} | {mode} | scaling exponent {k:.2f} (1 = linear) | | | | |")
         if hi >= 1_000_000:
             peak = res[hi]["peak"] / 1e6
             print(f"\nmemory target at {hi:,} ({mode}): peak ≤ {MEMORY_TARGET_MB:g} MB: {peak:.0f} MB — "
