@@ -148,15 +148,15 @@ class Instants:
     @functools.cached_property
     def earth_state(self):
         """Earth's barycentric position (AU) and velocity (AU/day), each (3, n)."""
-        from .apparent import barycentric_state_au
+        from .apparent import dense_state_au
 
-        return barycentric_state_au(self.eph, "earth", *self.tdb_parts)
+        return dense_state_au(self.eph, "earth", *self.tdb_parts)
 
     @functools.cached_property
     def sun_bcrs_au(self):
-        from .apparent import barycentric_au
+        from .apparent import dense_state_au
 
-        return barycentric_au(self.eph, "sun", *self.tdb_parts)
+        return dense_state_au(self.eph, "sun", *self.tdb_parts, velocity=False)
 
     @functools.cached_property
     def earth(self):

@@ -3,13 +3,14 @@
 Everything here works on plain numpy arrays with the instants on the last axis, so that the
 almanac (k bodies × n instants) and the reduction (one body and one instant per sight) share it:
 
-- Solar-system bodies: barycentric positions straight from the DE421 segments (jplephem, position
-  only), light-time by :data:`LIGHT_TIME_ITERATIONS` fixed-point step from the geometric
-  distance: the light-time left over is under lt·v/c (0.5 s for Jupiter, 0.02 s for Mars at
-  opposition), which moves a planet under 7 km, 0.002″ as seen from the Earth — measured against
-  ERFA: every body within 0.00004′ of astropy, as with full iteration. Then the same light
-  deflection by the Sun (IAU SOFA eraLd) and relativistic annual aberration (eraAb) as the stars.
-  Deflection by Jupiter and Saturn (under 0.02″ even at their limbs) is left out.
+- Solar-system bodies: barycentric position and velocity straight from the DE421 segments
+  (jplephem), evaluated once at the instant itself; the light-time is found by
+  :data:`LIGHT_TIME_ITERATIONS` fixed-point steps on the body's path taken as straight over the
+  light-time (b(t − τ) ≈ b(t) − v·τ). The curvature left out is ½·a·τ²: under 2 km for Mars,
+  under 1 km for Jupiter and Saturn, a few metres for Venus and centimetres for the Moon — at
+  most 0.003″ as seen from the Earth. Measured against ERFA: every body within 0.0001′ of astropy.
+  Then the same light deflection by the Sun (IAU SOFA eraLd) and relativistic annual aberration
+  (eraAb) as the stars.
 - Stars: space motion and parallax from the catalogue epoch, Sun deflection and aberration as
   SOFA's eraLdsun and eraAb.
 
@@ -26,7 +27,7 @@ from .angles import norm360
 AU_KM = 149_597_870.700            # IAU 2012 Resolution B2
 C_AU_PER_DAY = 173.144_632_674_240  # c = 299 792.458 km/s (SI), in AU/day
 SUN_SCHWARZSCHILD_AU = 1.974_125_743_36e-8  # 2GM/c² of the Sun in AU (IAU SOFA, SRS)
-LIGHT_TIME_ITERATIONS = 1
+LIGHT_TIME_ITERATIONS = 2
 
 # DE421 segments (center, target) whose sum is each body's barycentric position.
 SEGMENT_CHAINS = {
@@ -55,6 +56,50 @@ def barycentric_state_au(kernel, target: str, whole, fraction):
         p, v = kernel.spk.pairs[pair].compute_and_differentiate(whole, fraction)
         pos, vel = pos + p, vel + v
     return pos / AU_KM, vel / AU_KM
+
+
+# Grid steps (days) for many instants: cubic interpolation error ≈ 0.023·h⁴·|x⁗|. The Earth's
+# monthly wobble about the Earth-Moon barycentre (4670 km, 27.3 d) gives |x⁗| ≈ 13 km/day⁴,
+# so about 0.1 m at h = 1/8 day (its yearly path adds less); the Sun's barycentric path (about
+# 0.01 AU over 12 years) about a millimetre at h = 1/2 day. tests/test_apparent.py measures both.
+GRID_STEP_DAYS = {"earth": 0.125, "sun": 0.5}
+
+
+def _cubic_weights(x):
+    """Four-point Lagrange weights for points k−1..k+2 at u = x − k (k = floor(x))."""
+    k = np.floor(x).astype(int)
+    u = x - k
+    return k, ((-u * (u - 1.0) * (u - 2.0) / 6.0), ((u + 1.0) * (u - 1.0) * (u - 2.0) / 2.0),
+               (-(u + 1.0) * u * (u - 2.0) / 2.0), ((u + 1.0) * u * (u - 1.0) / 6.0))
+
+
+def dense_state_au(kernel, target: str, whole, fraction, velocity: bool = True):
+    """As :func:`barycentric_state_au` (or :func:`barycentric_au` without `velocity`), for many
+    instants: on a grid of GRID_STEP_DAYS[target] and interpolated, when the grid is smaller
+    than half the number of instants; else evaluated at every instant."""
+    whole, fraction = np.asarray(whole, dtype=float), np.asarray(fraction, dtype=float)
+    step = GRID_STEP_DAYS.get(target)
+    if step is not None and whole.size >= 64:
+        w0 = float(whole.min())
+        t = (whole - w0) + fraction
+        lo, hi = float(t.min()), float(t.max())
+        n_grid = int(np.ceil((hi - lo) / step)) + 4
+        if 2 * n_grid < t.size:
+            t0 = lo - step
+            grid = t0 + step * np.arange(n_grid)
+            k, w = _cubic_weights((t - t0) / step)
+            k = np.clip(k, 1, n_grid - 3)
+
+            def interp(v):
+                return w[0] * v[:, k - 1] + w[1] * v[:, k] + w[2] * v[:, k + 1] + w[3] * v[:, k + 2]
+
+            if velocity:
+                p, v = barycentric_state_au(kernel, target, w0, grid)
+                return interp(p), interp(v)
+            return interp(barycentric_au(kernel, target, w0, grid))
+    if velocity:
+        return barycentric_state_au(kernel, target, whole, fraction)
+    return barycentric_au(kernel, target, whole, fraction)
 
 
 def _dot(a, b):
@@ -100,11 +145,12 @@ def solar_apparent(kernel, target: str, whole, fraction, e_pos, e_vel, s_pos):
     `whole`, `fraction`: TDB of each instant (JD in two parts); Earth and Sun as in
     :func:`deflect_and_aberrate`, one column per instant.
     """
-    b = barycentric_au(kernel, target, whole, fraction)
+    b, v = barycentric_state_au(kernel, target, whole, fraction)
+    light_time_d = 0.0
     for _ in range(LIGHT_TIME_ITERATIONS):
-        d = b - e_pos
+        d = b - v * light_time_d - e_pos
         light_time_d = np.sqrt(_dot(d, d)) / C_AU_PER_DAY
-        b = barycentric_au(kernel, target, whole, fraction - light_time_d)
+    b = b - v * light_time_d
     d = b - e_pos
     dist = np.sqrt(_dot(d, d))
     p = d / dist

@@ -324,7 +324,8 @@ def _reduce_chunk(flat: dict, lo: int, hi: int, use_ap: bool, share, scalar: boo
         raise
     gha, dec, hp, alm_sd = _almanac_per_sight(names, part["utc"], share)
     lat, lon = part["lat_deg"], part["lon_deg"]
-    _, zn_dr = hc_zn(lat, dec, norm360(gha + lon))
+    lha_dr = norm360(gha + lon)
+    hc_dr, zn_dr = hc_zn(lat, dec, lha_dr)
 
     corr = {f: np.empty(n) for f in _CORRECTION_FIELDS}
     limbs, horizons = np.empty(n, dtype=object), np.empty(n, dtype=object)
@@ -352,7 +353,17 @@ def _reduce_chunk(flat: dict, lo: int, hi: int, use_ap: bool, share, scalar: boo
         for j in np.flatnonzero([bool(w) for w in c.warnings]):   # only the flagged sights
             warnings[idx[j]] = c.warnings[j]
 
-    red = (reduce_from_ap if use_ap else reduce_at)(corr["ho_deg"], gha, dec, lat, lon)
+    try:
+        _checked(corr["ho_deg"], "ho", -90.0, 90.0, "34.2")
+    except NavInputError as err:
+        err.row += lo
+        raise
+    if use_ap:
+        red = reduce_from_ap(corr["ho_deg"], gha, dec, lat, lon)
+    else:   # from the DR: Hc and Zn are the ones computed above (reduce_at, without redoing them)
+        red = Reduction(gha_deg=gha, dec_deg=dec, lat_deg=lat + 0.0, lon_deg=lon + 0.0,
+                        lha_deg=lha_dr, hc_deg=hc_dr, zn_deg=zn_dr, ho_deg=corr["ho_deg"],
+                        intercept_nmi=(corr["ho_deg"] - hc_dr) * 60.0 + 0.0)
     ho, x = corr["ho_deg"], np.asarray(red.intercept_nmi)
     for i in np.flatnonzero((ho > HIGH_ALTITUDE_DEG) | (np.abs(x) > LARGE_INTERCEPT_NMI)):
         warnings[i] = warnings[i] + reduction_warnings(ho[i], x[i])
