@@ -16,6 +16,10 @@ over 1995–2050 — nearly 10⁴ times below the 0.1′ a sextant can resolve �
 Stars are computed here, not through skyfield's ``Star`` one at a time: the whole catalogue is
 propagated in one array (space motion and parallax, Sun deflection and aberration by the IAU SOFA
 formulation of eraLdsun/eraAb), so a year of hourly positions for every star is one numpy pass.
+The Sun, Moon and planets take the same arithmetic (:mod:`nav.apparent`) straight from the DE421
+segments; skyfield supplies the time scale, precession, nutation series and GMST, and (for the
+planets only) the magnitudes. Nutation and the Earth's state are interpolated on fine grids when
+many instants are asked for (:mod:`nav.nutation`, :mod:`nav.apparent`; each measured in tests).
 """
 
 from __future__ import annotations

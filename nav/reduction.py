@@ -14,8 +14,10 @@ and Hc = atan2(z, √(x² + y²)), Zn = atan2(x, y) mod 360°. This keeps full p
 vertical, which is what Ho (from :mod:`nav.corrections`) refers to.
 
 :func:`reduce_sights` runs the whole chain — almanac, corrections, reduction — for many sights in
-one vectorised call, grouping the sights by body so that :func:`nav.almanac.almanac` runs once per
-body (bodies observed at the same instants share one :class:`nav.almanac.Instants` and one call).
+one vectorised call: the per-instant quantities (Earth's state, precession-nutation, GAST) once for
+every distinct instant, then one pass for all star sights and one per solar-system body, each at
+its own sights' instants (:func:`nav.almanac.places_at`); warnings are built only for the sights
+they concern; inputs of any length are worked in chunks (:func:`iter_reduce_sights` streams them).
 """
 
 from __future__ import annotations
