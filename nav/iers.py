@@ -81,6 +81,21 @@ def _data_file(name: str):
     return files("astropy_iers_data").joinpath("data", name)
 
 
+_LINE_BYTES = 188      # finals2000A.all: 187 fixed columns and a newline
+_KEEP_COLUMNS = 79     # through UT1-UTC and its error (skyfield's reader needs the first 68)
+
+
+def _leading_columns(raw: bytes) -> bytes:
+    """The file cut to its first columns, line by line (the reader then scans 40 % of the
+    text); the file itself if its lines are not all of the fixed length."""
+    if len(raw) % _LINE_BYTES:
+        return raw
+    lines = np.frombuffer(raw, dtype=np.uint8).reshape(-1, _LINE_BYTES)
+    if not np.all(lines[:, -1] == ord("\n")):
+        return raw
+    return np.concatenate([lines[:, :_KEEP_COLUMNS], lines[:, -1:]], axis=1).tobytes()
+
+
 def _has_measured(text: bytes) -> bool:
     return any(line[_FLAG_COL:_FLAG_COL + 1] == b"I" for line in text.splitlines())
 
@@ -97,7 +112,7 @@ def earth_orientation() -> EarthOrientation:
     from skyfield.io_timescale import parse_leap_seconds
 
     raw = _data_file(FINALS_FILE).read_bytes()
-    finals = parse_x_y_dut1_from_finals_all(io.BytesIO(raw))
+    finals = parse_x_y_dut1_from_finals_all(io.BytesIO(_leading_columns(raw)))
     mjd, dut1 = np.asarray(finals["utc_mjd"]), np.asarray(finals["dut1"])
     measured = mjd[0] - 1.0
     errors = []
