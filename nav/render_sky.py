@@ -1,0 +1,99 @@
+"""Renderers for the commands around the sights: sky (rise, set, twilight), meridian passage.
+
+Text in navigator notation (times to the minute for events, positions in degrees and minutes,
+bearings in whole degrees true) and JSON-ready dicts with the issue's keys. No maths here.
+"""
+
+from __future__ import annotations
+
+import textwrap
+from datetime import timedelta
+
+from .angles import format_dm, format_lat, format_lon
+from .timekeeping import format_utc
+
+MINUS = "\u2212"
+
+
+def zone_text(zd: timedelta) -> str:
+    """A zone description, the trade's way: ``+2``, ``−10``, ``0``, ``+5:30``."""
+    s = int(round(zd.total_seconds() / 60.0))
+    sign = "+" if s > 0 else (MINUS if s < 0 else "")
+    h, m = divmod(abs(s), 60)
+    return f"{sign}{h}" + (f":{m:02d}" if m else "")
+
+
+def zone_json(zd: timedelta) -> str:
+    return zone_text(zd).replace(MINUS, "-")
+
+
+def _minute(t) -> str:
+    return (t + timedelta(seconds=30)).strftime("%H:%M")
+
+
+def _iso_naive(t) -> str:
+    return (t + timedelta(microseconds=500_000)).strftime("%Y-%m-%dT%H:%M:%S")
+
+
+def motion_text(track) -> str:
+    if track.speed_kn > 0:
+        return f"{track.course_deg:05.1f}° at {track.speed_kn:g} kn"
+    return "hove to (no course and speed)"
+
+
+def sky_lines(s) -> list[str]:
+    """A :class:`nav.sky.SkyDay` in navigator notation."""
+    from .sky import EVENT_WORDS
+
+    tr = s.track
+    out = [f"Sky on {s.day:%Y-%m-%d}, zone {zone_text(s.zone_description)} ({s.zone_source})",
+           f"  DR at 12:00 ZT {format_lat(tr.lat_deg)} {format_lon(tr.lon_deg)}, "
+           f"{motion_text(tr)}; each event at the DR then",
+           "",
+           f"  {'event':<26}{'ZT':<7}{'UTC':<7}{'DR then':<25}Zn"]
+    for e in s.events:
+        zn = f"{e.zn_deg:03.0f}°"
+        if "meridian" in e.event:
+            zn += " (S)" if abs(e.zn_deg - 180.0) < 90.0 else " (N)"
+        out.append(f"  {EVENT_WORDS[e.event]:<26}{_minute(e.zone_time):<7}{_minute(e.utc):<7}"
+                   f"{format_lat(e.lat_deg) + ' ' + format_lon(e.lon_deg):<25}{zn}")
+    if s.absent:
+        out.append("")
+        out.append("  Not on this date:")
+        for code in s.absent:
+            out.append(f"    {EVENT_WORDS[code]}: {s.absent_reasons.get(code, '')}")
+    m = s.moon
+    out += ["", f"  Moon: {m.phase}, {m.illuminated_fraction * 100:.0f}% of the disc lit "
+                f"(at 12:00 ZT)"]
+    horizon = ("the sea-level horizon" if not s.eye_height_m else
+               f"the visible horizon (eye {s.eye_height_m:g} m, dip {s.dip_arcmin:.1f}′ added)")
+    text = ("Definitions: sunrise and sunset, the Sun's upper limb on " + horizon + ": its "
+            "centre at −50′ true (34′ refraction + 16′ SD); civil and nautical twilight, the "
+            "Sun's centre at −6° and −12° true (no dip, no refraction); moonrise and moonset, "
+            "the Moon's upper limb with its HP and 34′ refraction; meridian passage, the upper "
+            "transit.")
+    out += [""] + ["  " + x for x in textwrap.wrap(text, 88)]
+    for w in s.warnings:
+        out.append(f"  Warning: {w}")
+    return out
+
+
+def sky_dict(s) -> dict:
+    return {
+        "date": f"{s.day:%Y-%m-%d}",
+        "zone": zone_json(s.zone_description),
+        "zone_source": s.zone_source,
+        "events": [{"event": e.event, "utc": format_utc(e.utc),
+                    "zone_time": _iso_naive(e.zone_time), "lat_deg": round(e.lat_deg, 6),
+                    "lon_deg": round(e.lon_deg, 6), "zn_deg": round(e.zn_deg, 2)}
+                   for e in s.events],
+        "absent": list(s.absent),
+        "absent_reasons": dict(s.absent_reasons),
+        "moon": {"phase": s.moon.phase,
+                 "illuminated_fraction": round(s.moon.illuminated_fraction, 4)},
+        "eye_height_m": s.eye_height_m,
+        "dip_arcmin": round(s.dip_arcmin, 2),
+        "warnings": list(s.warnings),
+    }
+
+
