@@ -20,6 +20,7 @@ COMMAND_MODULES = (
     "nav.commands.passage_cmd",
     "nav.commands.noon_cmd",
     "nav.commands.sky_cmd",
+    "nav.commands.meridian_cmd",
     "nav.commands.shell_cmd",
 )
 

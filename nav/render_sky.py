@@ -97,3 +97,48 @@ def sky_dict(s) -> dict:
     }
 
 
+
+
+def _r(x, k=6):
+    return None if x is None else round(float(x), k)
+
+
+def instrument_text(x) -> str:
+    where = f"eye {x.eye_height_m:g} m" if x.horizon == "sea" else f"{x.horizon} horizon"
+    return (f"{where}, IE {x.index_error_arcmin:+.1f}′, {x.temperature_c:g} °C, "
+            f"{x.pressure_hpa:g} hPa").replace("-", MINUS)
+
+
+def transit_lines(t) -> list[str]:
+    """A :class:`nav.transit.Transit` in navigator notation."""
+    out = [f"Meridian passage of {t.body} (upper transit), zone {zone_text(t.zone_description)}"]
+    if t.utc is None:
+        return out + [f"  ! {w}" for w in t.warnings]
+    zt = t.zone_time + timedelta(microseconds=500_000)
+    utc = t.utc + timedelta(microseconds=500_000)
+    out += [f"  UTC          {utc:%H:%M:%S}  ({utc:%Y-%m-%d})",
+            f"  zone time    {zt:%H:%M:%S}  ({zt:%Y-%m-%d}, UTC = ZT + ZD)",
+            f"  DR then      {format_lat(t.lat_deg)} {format_lon(t.lon_deg)}",
+            f"  Dec          {format_lat(t.dec_deg)}",
+            f"  Hc           {format_dm(t.hc_deg)}  on the meridian, bearing {t.bearing} "
+            f"(Zn {t.zn_deg:03.0f}°)"]
+    if t.hs_preset_deg is not None:
+        limb = f"{t.limb} limb, " if t.limb else ""
+        out.append(f"  Hs to preset {format_dm(t.hs_preset_deg)}  ({limb}{instrument_text(t)})")
+    out.append(f"  latitude     {t.rule}")
+    out += [f"  ! {w}" for w in t.warnings]
+    return out
+
+
+def transit_dict(t) -> dict:
+    return {
+        "body": t.body,
+        "utc": None if t.utc is None else format_utc(t.utc),
+        "zone_time": None if t.zone_time is None else _iso_naive(t.zone_time),
+        "zone": zone_json(t.zone_description),
+        "hc_deg": _r(t.hc_deg), "hs_preset_deg": _r(t.hs_preset_deg),
+        "lat_deg": _r(t.lat_deg), "lon_deg": _r(t.lon_deg), "dec_deg": _r(t.dec_deg),
+        "zn_deg": _r(t.zn_deg, 4), "bearing": t.bearing, "limb": t.limb,
+        "latitude_rule": t.rule, "eye_height_m": t.eye_height_m,
+        "index_error_arcmin": t.index_error_arcmin, "warnings": list(t.warnings),
+    }
