@@ -125,7 +125,8 @@ def transit_lines(t) -> list[str]:
     if t.hs_preset_deg is not None:
         limb = f"{t.limb} limb, " if t.limb else ""
         out.append(f"  Hs to preset {format_dm(t.hs_preset_deg)}  ({limb}{instrument_text(t)})")
-    out.append(f"  latitude     {t.rule}")
+    rule = textwrap.wrap(t.rule, 74)
+    out += [f"  latitude     {rule[0]}"] + [f"               {x}" for x in rule[1:]]
     out += [f"  ! {w}" for w in t.warnings]
     return out
 

@@ -86,6 +86,49 @@ class Track:
                 np.broadcast_to(np.asarray(lon, dtype=float), np.shape(hours)))
 
 
+class LoggedTrack:
+    """The DR of a passage log along its legs (:class:`nav.passage.Passage`), as a Track.
+
+    ``utc``/``lat_deg``/``lon_deg``/``course_deg``/``speed_kn`` describe it at `ref_utc`; before
+    the first position logged the DR is retired from it along the first leg."""
+
+    def __init__(self, passage, ref_utc: datetime):
+        self.passage = passage
+        w = self._where(ref_utc)
+        self.utc, self.lat_deg, self.lon_deg = ref_utc, float(w[0]), float(w[1])
+        leg = passage.leg_at(ref_utc)
+        moving = leg is not None and leg.course_deg is not None and leg.speed_kn > 0
+        self.course_deg = leg.course_deg if moving else 0.0
+        self.speed_kn = leg.speed_kn if moving else 0.0
+        self.basis = passage.where(ref_utc).describe() if passage.anchors and \
+            ref_utc >= passage.anchors[0].utc else "retired from the first position logged"
+
+    def _where(self, utc: datetime):
+        from .sailing import advance_position
+
+        p = self.passage
+        if not p.anchors:
+            p.where(utc)                       # raises: enter a DR first
+        first = p.anchors[0]
+        if utc >= first.utc:
+            w = p.where(utc)
+            return w.lat_deg, w.lon_deg
+        leg = p.leg_at(first.utc)
+        if leg is None or leg.course_deg is None or not leg.speed_kn:
+            return first.lat_deg, first.lon_deg
+        hours = (utc - first.utc).total_seconds() / 3600.0
+        return advance_position(first.lat_deg, first.lon_deg, leg.course_deg, leg.speed_kn,
+                                hours)
+
+    def at(self, t64) -> tuple[np.ndarray, np.ndarray]:
+        t64 = np.asarray(t64, dtype="datetime64[us]")
+        flat = t64.reshape(-1)
+        pts = [self._where(from_datetime64(t)) for t in flat]
+        lat = np.array([float(a) for a, _ in pts]).reshape(t64.shape)
+        lon = np.array([float(b) for _, b in pts]).reshape(t64.shape)
+        return lat, lon
+
+
 def zone_for_longitude(lon_deg: float) -> timedelta:
     """The zone description of a longitude (the trade's 15° zones, west +): ZD = round(−lon/15)."""
     return timedelta(hours=int(np.floor(-float(lon_deg) / 15.0 + 0.5)))

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 from ..errors import NavInputError
-from . import handlers, meridian_cmds, records
+from . import handlers, meridian_cmds, records, sky_cmds
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
                     parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
                     parse_noon, parse_note, parse_plain, parse_plot, parse_set, parse_show,
@@ -108,6 +108,22 @@ COMMANDS_LIST = (
              "the timing is the weak point: 1 min of time is 15′ of longitude",
              "log: append the longitude as a note (a line of position, not a fix)"),
             ("longitude at 13:41:36", "longitude zt 11:41:48 log")),
+    Command("sky", "sky [DATE]",
+            "twilight, sunrise and sunset, moonrise and moonset, meridian passages, along the DR",
+            sky_cmds.parse_sky, sky_cmds.run_sky, (), None,
+            ("DATE: the ship's date in zone time (default as for noon)",
+             "each event is worked at the DR the vessel will have then, along the legs logged",
+             "zone: the one set with `set zone`, else the DR longitude's",
+             "sunrise/sunset: upper limb on the sea horizon (centre −50′ true); twilight: "
+             "centre at −6° (civil) and −12° (nautical)"),
+            ("sky", "sky 2026-06-21")),
+    Command("meridian", "meridian BODY [DATE]",
+            "meridian passage of any body along the DR: time, Hc, Hs to preset, latitude rule",
+            sky_cmds.parse_meridian, sky_cmds.run_meridian, (), "body",
+            ("the upper transit at the DR the vessel will have then, along the legs logged",
+             "Hs to preset: with the height of eye, index error, temperature and pressure in "
+             "force (lower limb for the Sun and Moon)"),
+            ("meridian Jupiter", "meridian Vega 2026-06-21")),
     Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
             parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
             ("almanac Sun at 12:00:00",)),
