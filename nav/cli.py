@@ -21,6 +21,7 @@ COMMAND_MODULES = (
     "nav.commands.noon_cmd",
     "nav.commands.sky_cmd",
     "nav.commands.meridian_cmd",
+    "nav.commands.compass_cmd",
     "nav.commands.shell_cmd",
 )
 

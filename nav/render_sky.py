@@ -143,3 +143,80 @@ def transit_dict(t) -> dict:
         "latitude_rule": t.rule, "eye_height_m": t.eye_height_m,
         "index_error_arcmin": t.index_error_arcmin, "warnings": list(t.warnings),
     }
+
+
+# ---------------------------------------------------------------- compass
+
+def compass_lines(c) -> list[str]:
+    """A :class:`nav.compass.CompassCheck` in the trade's words."""
+    from .compass import ew
+
+    head = ("by azimuth" if c.method == "azimuth" else
+            f"by amplitude ({'rising' if c.rising else 'setting'}, {c.horizon} horizon)")
+    utc = c.utc + timedelta(microseconds=500_000)
+    out = [f"Compass check {head}: {c.body} at {utc:%Y-%m-%d %H:%M:%S} UTC",
+           f"  DR           {format_lat(c.lat_deg)} {format_lon(c.lon_deg)}",
+           f"  Dec          {format_lat(c.dec_deg)}   LHA {format_dm(c.lha_deg, deg_width=3)}"]
+    if c.method == "amplitude":
+        out.append(f"  amplitude    {c.amplitude_name}  (sin A = sin Dec / cos lat, centre on the "
+                   "celestial horizon)")
+        if c.horizon == "visible":
+            corr = f"{c.visible_correction_deg:+.1f}".replace("-", MINUS)
+            alt = f"{c.horizon_alt_deg * 60:+.0f}".replace("-", MINUS)
+            out.append(f"  visible-horizon correction {corr}°  (centre on the visible horizon: "
+                       f"true altitude {alt}′)")
+    out.append(f"  true bearing Zn {c.zn_deg:05.1f}°")
+    out.append(f"  compass      {c.compass_bearing_deg:05.1f}°")
+    out.append(f"  error        {ew(c.compass_error_deg)}  (true = compass + error, E +)")
+    if c.variation_deg is not None:
+        out.append(f"  variation    {ew(c.variation_deg)}")
+        out.append(f"  deviation    {ew(c.deviation_deg)}  (error − variation)"
+                   + (f" on compass heading {c.heading_deg:03.0f}°" if c.heading_deg is not None
+                      else ""))
+    out += [f"  ! {w}" for w in c.warnings]
+    return out
+
+
+def compass_dict(c) -> dict:
+    d = {"method": c.method, "body": c.body, "utc": format_utc(c.utc),
+         "zn_deg": round(c.zn_deg, 3), "compass_bearing_deg": c.compass_bearing_deg,
+         "compass_error_deg": round(c.compass_error_deg, 3),
+         "lat_deg": _r(c.lat_deg), "lon_deg": _r(c.lon_deg), "dec_deg": _r(c.dec_deg),
+         "alt_deg": _r(c.alt_deg, 3), "warnings": list(c.warnings)}
+    if c.variation_deg is not None:
+        d["variation_deg"] = c.variation_deg
+        d["deviation_deg"] = round(c.deviation_deg, 3)
+    if c.heading_deg is not None:
+        d["heading_deg"] = c.heading_deg
+    if c.method == "amplitude":
+        d.update({"amplitude_deg": round(c.amplitude_deg, 3), "amplitude": c.amplitude_name,
+                  "rising": c.rising, "horizon": c.horizon,
+                  "visible_correction_deg": _r(c.visible_correction_deg, 3)})
+    return d
+
+
+def deviation_lines(table) -> list[str]:
+    """[(heading, [DeviationRow])] -> the deviation found on each compass heading."""
+    from .compass import ew
+
+    if not table:
+        return ["No compass checks with a deviation in this log (a check needs the variation)."]
+    out = ["Deviation found on each compass heading (nearest 5°)",
+           f"  {'heading':<9}{'deviation':<11}{'checks':<8}from"]
+    for heading, rows in table:
+        mean = sum(r.deviation_deg for r in rows) / len(rows)
+        spread = max(r.deviation_deg for r in rows) - min(r.deviation_deg for r in rows)
+        ids = ", ".join(f"{r.entry_id} ({r.body}, {r.method}, {r.utc:%m-%d %H:%M})"
+                        for r in rows)
+        note = f"  spread {spread:.1f}°" if len(rows) > 1 else ""
+        out.append(f"  {heading:03d}°     {ew(mean):<11}{len(rows):<8}{ids}{note}")
+    return out
+
+
+def deviation_dict(table) -> dict:
+    return {"headings": [
+        {"heading_deg": h, "deviation_deg": round(sum(r.deviation_deg for r in rows) / len(rows), 3),
+         "checks": [{"id": r.entry_id, "utc": format_utc(r.utc), "body": r.body,
+                     "method": r.method, "heading_deg": r.heading_deg,
+                     "deviation_deg": round(r.deviation_deg, 3)} for r in rows]}
+        for h, rows in table]}

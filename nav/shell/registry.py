@@ -124,6 +124,22 @@ COMMANDS_LIST = (
              "Hs to preset: with the height of eye, index error, temperature and pressure in "
              "force (lower limb for the Sun and Moon)"),
             ("meridian Jupiter", "meridian Vega 2026-06-21")),
+    Command("compass", f"compass BODY BEARING heading H [var V] [amplitude [visible]] "
+                       f"({TIME}) [note TEXT]",
+            "log a compass check: compass error (and deviation) by azimuth or amplitude",
+            sky_cmds.parse_compass, sky_cmds.run_compass, sky_cmds.COMPASS_WORDS, "body",
+            ("BEARING: the body's bearing by the compass; heading: the ship's head by the same "
+             "compass (for the deviation table)",
+             "by azimuth: the body's true Zn at the time from the DR; amplitude: the body "
+             "rising or setting, sin A = sin Dec / cos lat, centre on the celestial horizon; "
+             "visible: centre on the visible horizon, corrected",
+             "error: true = compass + error, E +; var: variation (9 W, 3.5 E): deviation = "
+             "error − variation",
+             "`deviations` lists the deviation found on each heading"),
+            ("compass Sun 055 heading 245 var 9 W amplitude at 06:31:10",
+             "compass Vega 080 heading 250 at 23:30:00")),
+    Command("deviations", "deviations", "the deviation found on each compass heading so far",
+            sky_cmds.parse_deviations, sky_cmds.run_deviations, (), None, (), ("deviations",)),
     Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
             parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
             ("almanac Sun at 12:00:00",)),

@@ -102,3 +102,128 @@ def run_meridian(st, req) -> None:
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']}); DR from the log along the legs",
            *transit_lines(t))
     _caution(st)
+
+
+# ---------------------------------------------------------------- compass
+
+COMPASS_WORDS = ("heading", "var", "at", "zt", "note")
+COMPASS_FLAGS = ("amplitude", "visible")
+COMPASS_EXAMPLE = "compass Sun 055 heading 245 var 9 W amplitude at 06:31:10"
+
+
+def _compass_words(args, line):
+    """Positional tokens, {word: text} and the flags of a compass line."""
+    pos, opts, flags, current, values = [], {}, set(), None, []
+
+    def close():
+        if current is not None:
+            if not values:
+                raise NavInputError(f"'{current}' needs a value", field=current,
+                                    example=COMPASS_EXAMPLE)
+            opts[current] = " ".join(t.text for t in values)
+
+    for tok in args:
+        key = tok.text.lower()
+        if key in COMPASS_WORDS or key in COMPASS_FLAGS:
+            close()
+            current, values = None, []
+            if key in opts or key in flags:
+                raise NavInputError(f"'{key}' is given twice", field=key, example=COMPASS_EXAMPLE)
+            if key in COMPASS_FLAGS:
+                flags.add(key)
+            elif key == "note":
+                opts["note"] = line[tok.end:].strip()
+                if not opts["note"]:
+                    raise NavInputError("'note' needs its text", field="note",
+                                        example="note by hand-bearing compass")
+                return pos, opts, flags
+            else:
+                current = key
+        elif current is None:
+            if opts or flags:
+                raise NavInputError(f"'{tok.text}' is not understood here", field="compass",
+                                    example=COMPASS_EXAMPLE)
+            pos.append(tok)
+        else:
+            values.append(tok)
+    close()
+    return pos, opts, flags
+
+
+def parse_compass(args, line, ctx) -> Request:
+    """``compass BODY BEARING heading H [var V] [amplitude [visible]] (at T | zt T) [note T]``."""
+    from ..angles import norm360, parse_angle, parse_east_west
+    from ..fields import parse_body
+    from .times import parse_time_options
+
+    pos, opts, flags = _compass_words(args, line)
+    if len(pos) < 2:
+        raise NavInputError("give the body and its compass bearing", field="compass",
+                            example=COMPASS_EXAMPLE)
+    body = parse_body(" ".join(t.text for t in pos[:-1]), "body")
+    bearing = float(norm360(parse_angle(pos[-1].text, "bearing", min_deg=0, max_deg=360)))
+    if "heading" not in opts:
+        raise NavInputError("a compass check needs the ship's head by the same compass",
+                            field="heading", example=COMPASS_EXAMPLE)
+    heading = float(norm360(parse_angle(opts["heading"], "heading", min_deg=0, max_deg=360)))
+    var = parse_east_west(opts["var"], "var") if "var" in opts else None
+    if "visible" in flags and "amplitude" not in flags:
+        raise NavInputError("'visible' is for an amplitude", field="visible",
+                            example="... amplitude visible at 06:31:10")
+    t = parse_time_options(opts, ctx, sight=True, required=True)
+    return Request("compass", time=t, args={
+        "body": body, "bearing": bearing, "heading": heading, "variation": var,
+        "amplitude": "amplitude" in flags,
+        "horizon": "visible" if "visible" in flags else "celestial", "note": opts.get("note")})
+
+
+def compass_summary(d) -> str:
+    from ..compass import ew
+
+    dev = f", deviation {ew(d['deviation_deg'])}" if d.get("deviation_deg") is not None else ""
+    return (f"{d['body']} by {d['method']}: compass {d['compass_bearing_deg']:05.1f}°, Zn "
+            f"{d['zn_deg']:05.1f}°, error {ew(d['compass_error_deg'])}{dev}, heading "
+            f"{d['heading_deg']:03.0f}°")
+
+
+def run_compass(st, req) -> None:
+    from ..compass import compass_check
+    from ..render_sky import compass_lines
+
+    a, t = req.args, req.time
+    w = st.passage.where(t.utc)
+    s = st.settings
+    c = compass_check(a["body"], t.utc, w.lat_deg, w.lon_deg, a["bearing"],
+                      variation_deg=a["variation"], heading_deg=a["heading"],
+                      amplitude=a["amplitude"], horizon=a["horizon"],
+                      eye_height_m=s.eye_height_m)
+    entry = {"kind": "compass_check", "utc": t.utc, "time_text": t.text, "body": c.body,
+             "method": c.method, "compass_bearing_deg": c.compass_bearing_deg,
+             "heading_deg": a["heading"], "zn_deg": round(c.zn_deg, 6) % 360.0,
+             "compass_error_deg": round(c.compass_error_deg, 6),
+             "lat_deg": round(c.lat_deg, 8), "lon_deg": round(c.lon_deg, 8)}
+    if c.method == "amplitude":
+        entry["horizon"] = c.horizon
+    if c.variation_deg is not None:
+        entry["variation_deg"] = c.variation_deg
+        entry["deviation_deg"] = round(c.deviation_deg, 6)
+    if a["note"]:
+        entry["note"] = a["note"]
+    e = st.append(entry)
+    st.say(f"logged {e.id}: compass check, {t.explain}", f"  DR basis     {w.describe()}",
+           *compass_lines(c))
+
+
+def parse_deviations(args, line, ctx) -> Request:
+    if args:
+        raise NavInputError(f"'{args[0].text}' is not understood here", field="deviations",
+                            example="deviations")
+    return Request("deviations")
+
+
+def run_deviations(st, req) -> None:
+    from ..compass import deviation_rows, deviation_table
+    from ..render_sky import deviation_lines
+
+    table = deviation_table(deviation_rows(st.log.effective_entries("compass_check")))
+    st.say(*deviation_lines(table))
