@@ -22,6 +22,7 @@ COMMAND_MODULES = (
     "nav.commands.sky_cmd",
     "nav.commands.meridian_cmd",
     "nav.commands.compass_cmd",
+    "nav.commands.identify_cmd",
     "nav.commands.shell_cmd",
 )
 

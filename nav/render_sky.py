@@ -220,3 +220,48 @@ def deviation_dict(table) -> dict:
                      "method": r.method, "heading_deg": r.heading_deg,
                      "deviation_deg": round(r.deviation_deg, 3)} for r in rows]}
         for h, rows in table]}
+
+
+# ---------------------------------------------------------------- identify
+
+def _cand_row(c) -> str:
+    mag = "" if c.magnitude is None else f"{c.magnitude:+.1f}".replace("-", MINUS)
+    d_alt = f"{c.altitude_diff_arcmin:+.0f}′".replace("-", MINUS)
+    d_az = f"{c.azimuth_diff_deg:+.1f}°".replace("-", MINUS)
+    return (f"  {c.body:<22}{format_dm(c.hc_deg):>11}  {c.zn_deg:05.1f}°  {d_alt:>6}  "
+            f"{d_az:>7}  {mag:>5}  {c.kind}")
+
+
+def identify_lines(r) -> list[str]:
+    utc = r.utc + timedelta(microseconds=500_000)
+    out = [f"Which body: Hs {format_dm(r.hs_deg)} bearing {r.zn_observed_deg:05.1f}° true at "
+           f"{utc:%Y-%m-%d %H:%M:%S} UTC",
+           f"  from the DR {format_lat(r.lat_deg)} {format_lon(r.lon_deg)}; Ho as a star "
+           f"{format_dm(r.ho_star_deg)}", ""]
+    head = f"  {'body':<22}{'Hc':>11}  {'Zn':<6}  {'Ho−Hc':>6}  {'ΔZn':>7}  {'mag':>5}"
+    if r.candidates:
+        out += ["  Candidates, best fit first:", head] + [_cand_row(c) for c in r.candidates]
+        if r.tie:
+            out.append(f"  ! {r.candidates[0].body} and {r.candidates[1].body} fit about "
+                       "equally: take another bearing, or a second star, to tell them apart")
+    else:
+        out += ["  No body fits this altitude and bearing (within about 2.5° of altitude or 7° "
+                "of bearing). The nearest:", head] + [_cand_row(c) for c in r.nearest]
+    out += ["", f"  The point observed: Dec {format_lat(r.observed_dec_deg)}, SHA "
+                f"{format_dm(r.observed_sha_deg, deg_width=3)} (from Ho and the bearing at the "
+                "DR)"]
+    out += [f"  ! {w}" for w in r.warnings]
+    return out
+
+
+def identify_dict(r) -> dict:
+    def c(x):
+        return {"body": x.body, "kind": x.kind, "hc_deg": _r(x.hc_deg), "zn_deg": _r(x.zn_deg, 4),
+                "altitude_diff_arcmin": _r(x.altitude_diff_arcmin, 2),
+                "azimuth_diff_deg": _r(x.azimuth_diff_deg, 3), "magnitude": _r(x.magnitude, 2),
+                "fit": _r(x.distance, 3)}
+
+    return {"utc": format_utc(r.utc), "candidates": [c(x) for x in r.candidates],
+            "fits": bool(r.candidates), "tie": r.tie, "nearest": [c(x) for x in r.nearest],
+            "observed": {"dec_deg": _r(r.observed_dec_deg), "sha_deg": _r(r.observed_sha_deg)},
+            "ho_star_deg": _r(r.ho_star_deg), "warnings": list(r.warnings)}

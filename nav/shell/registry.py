@@ -140,6 +140,15 @@ COMMANDS_LIST = (
              "compass Vega 080 heading 250 at 23:30:00")),
     Command("deviations", "deviations", "the deviation found on each compass heading so far",
             sky_cmds.parse_deviations, sky_cmds.run_deviations, (), None, (), ("deviations",)),
+    Command("identify", f"identify HS ZN ({TIME})",
+            "which body was it: candidates ranked by the fit of Hc and Zn at the DR",
+            sky_cmds.parse_identify, sky_cmds.run_identify, ("at", "zt"), None,
+            ("HS: the sextant altitude; ZN: the true bearing (a hand-bearing compass, "
+             "corrected: a few degrees are enough)",
+             "candidates: the 58 stars, the planets, the Moon and the other stars to "
+             "magnitude 3.5; with height of eye and IE in force",
+             "when none fits: the Dec and SHA of the point observed"),
+            ("identify 51 00.0 076 at 23:30:00",)),
     Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
             parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
             ("almanac Sun at 12:00:00",)),

@@ -227,3 +227,39 @@ def run_deviations(st, req) -> None:
 
     table = deviation_table(deviation_rows(st.log.effective_entries("compass_check")))
     st.say(*deviation_lines(table))
+
+
+# ---------------------------------------------------------------- identify
+
+IDENTIFY_EXAMPLE = "identify 51 00.0 076 at 23:30:00"
+
+
+def parse_identify(args, line, ctx) -> Request:
+    """``identify HS ZN (at TIME | zt TIME)``: the last positional word is the bearing."""
+    from ..angles import norm360, parse_angle
+    from ..fields import SIGHT_FIELD_BY_NAME
+    from .times import parse_time_options
+    from .words import split_words
+
+    pos, opts = split_words(line, args, ("at", "zt"), command="identify")
+    if len(pos) < 2:
+        raise NavInputError("give the sextant altitude and the true bearing", field="identify",
+                            example=IDENTIFY_EXAMPLE)
+    hs = SIGHT_FIELD_BY_NAME["hs"].parse(" ".join(t.text for t in pos[:-1]), "hs")
+    zn = float(norm360(parse_angle(pos[-1].text, "zn", min_deg=0.0, max_deg=360.0)))
+    t = parse_time_options(opts, ctx, sight=True, required=True)
+    return Request("identify", time=t, args={"hs": hs, "zn": zn})
+
+
+def run_identify(st, req) -> None:
+    from ..identify import identify
+    from ..render_sky import identify_lines
+
+    t = req.time
+    w = st.passage.where(t.utc)
+    s = st.settings
+    r = identify(t.utc, req.args["hs"], req.args["zn"], w.lat_deg, w.lon_deg,
+                 index_error_arcmin=s.index_error_arcmin,
+                 eye_height_m=s.eye_height_m if s.horizon == "sea" else 0.0,
+                 temperature_c=s.temperature_c, pressure_hpa=s.pressure_hpa)
+    st.say(f"time: {t.explain}", f"DR basis: {w.describe()}", *identify_lines(r))
