@@ -23,6 +23,7 @@ COMMAND_MODULES = (
     "nav.commands.meridian_cmd",
     "nav.commands.compass_cmd",
     "nav.commands.identify_cmd",
+    "nav.commands.plan_cmd",
     "nav.commands.shell_cmd",
 )
 

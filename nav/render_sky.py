@@ -265,3 +265,58 @@ def identify_dict(r) -> dict:
             "fits": bool(r.candidates), "tie": r.tie, "nearest": [c(x) for x in r.nearest],
             "observed": {"dec_deg": _r(r.observed_dec_deg), "sha_deg": _r(r.observed_sha_deg)},
             "ho_star_deg": _r(r.ho_star_deg), "warnings": list(r.warnings)}
+
+
+# ---------------------------------------------------------------- plan
+
+def plan_lines(p) -> list[str]:
+    utc = p.utc + timedelta(microseconds=500_000)
+    zt = "" if p.zone_description is None else \
+        f", ZT {utc - p.zone_description:%H:%M:%S} (zone {zone_text(p.zone_description)})"
+    sun = f"{p.sun_alt_deg:+.1f}".replace("-", MINUS)
+    out = [f"Bodies to shoot at {utc:%Y-%m-%d %H:%M:%S} UTC{zt}",
+           f"  {p.how}" if p.how else "",
+           f"  DR then {format_lat(p.lat_deg)} {format_lon(p.lon_deg)}; Sun's centre {sun}°"]
+    out = [x for x in out if x]
+    if p.window is not None:
+        a, b = p.window
+        mins = (b - a).total_seconds() / 60.0
+        out.append(f"  Horizon and stars both usable {a + timedelta(seconds=30):%H:%M}–"
+                   f"{b + timedelta(seconds=30):%H:%M} UTC, about {mins:.0f} min (Sun's "
+                   "centre between −3° and −9°)")
+    out += ["", f"  Candidates between {p.min_alt_deg:g}° and {p.max_alt_deg:g}° (Hs to preset: "
+                f"eye {p.eye_height_m:g} m, IE {p.index_error_arcmin:+.1f}′)".replace("-", MINUS),
+            f"    {'body':<16}{'Hc':>9}  {'Zn':<6}  {'mag':>5}  {'Hs preset':>10}  flags"]
+    for b in p.bodies:
+        mark = "*" if b.body in p.selection else " "
+        mag = "" if b.magnitude is None else f"{b.magnitude:+.1f}".replace("-", MINUS)
+        hs = "" if b.hs_preset_deg is None else format_dm(b.hs_preset_deg)
+        flags = []
+        if b.near_moon:
+            flags.append("near the Moon")
+        if b.kind == "moon":
+            flags.append(f"{b.limb} limb" + (": " + b.note if b.note else ""))
+        out.append(f"  {mark} {b.body:<16}{format_dm(b.hc_deg):>9}  {b.zn_deg:05.1f}°  {mag:>5}"
+                   f"  {hs:>10}  {'; '.join(flags)}".rstrip())
+    out += ["", f"  Suggested set (*): {', '.join(p.selection) or 'none'}",
+            f"  Azimuth spread {p.azimuth_spread_deg:.0f}°, widest gap {p.widest_gap_deg:.0f}° "
+            "(chosen for spread first, brightness second)"]
+    out += [f"  ! {w}" for w in p.warnings]
+    return out
+
+
+def plan_dict(p) -> dict:
+    return {
+        "utc": format_utc(p.utc), "how": p.how, "sun_alt_deg": _r(p.sun_alt_deg, 3),
+        "lat_deg": _r(p.lat_deg), "lon_deg": _r(p.lon_deg),
+        "bodies": [{"body": b.body, "hc_deg": _r(b.hc_deg), "zn_deg": _r(b.zn_deg, 4),
+                    "magnitude": _r(b.magnitude, 2), "hs_preset_deg": _r(b.hs_preset_deg),
+                    "limb": b.limb, "near_moon": b.near_moon, "wrong_limb": b.wrong_limb}
+                   for b in p.bodies],
+        "selection": list(p.selection), "azimuth_spread_deg": _r(p.azimuth_spread_deg, 2),
+        "widest_gap_deg": _r(p.widest_gap_deg, 2),
+        "usable_window": None if p.window is None else
+        {"start_utc": format_utc(p.window[0]), "end_utc": format_utc(p.window[1]),
+         "minutes": round((p.window[1] - p.window[0]).total_seconds() / 60.0, 1)},
+        "warnings": list(p.warnings),
+    }

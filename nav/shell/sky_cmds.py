@@ -263,3 +263,45 @@ def run_identify(st, req) -> None:
                  eye_height_m=s.eye_height_m if s.horizon == "sea" else 0.0,
                  temperature_c=s.temperature_c, pressure_hpa=s.pressure_hpa)
     st.say(f"time: {t.explain}", f"DR basis: {w.describe()}", *identify_lines(r))
+
+
+# ---------------------------------------------------------------- plan
+
+PLAN_EXAMPLE = "plan evening, plan morning 2026-06-22 count 6"
+
+
+def parse_plan(args, line, ctx) -> Request:
+    """``plan morning|evening [DATE] [count N]``."""
+    from ..angles import parse_number
+
+    words = [a.text.lower() for a in args]
+    if not words or words[0] not in ("morning", "evening"):
+        raise NavInputError("say which twilight: morning or evening", field="twilight",
+                            example=PLAN_EXAMPLE)
+    count = 5
+    rest = list(args[1:])
+    if len(rest) >= 2 and rest[-2].text.lower() == "count":
+        n = parse_number(rest[-1].text, "count", min_value=3, max_value=7, example="5")
+        if n != int(n):
+            raise NavInputError(f"'{rest[-1].text}' is not a whole number", field="count",
+                                example="count 5")
+        count, rest = int(n), rest[:-2]
+    req = parse_noon(rest, line, ctx)
+    return Request("plan", args={**req.args, "twilight": words[0], "count": count})
+
+
+def run_plan(st, req) -> None:
+    from ..planning import plan, twilight_instant
+    from ..render_sky import plan_lines
+
+    day = req.args["date"]
+    zd, track = day_and_track(st, day)
+    s = st.settings
+    utc = twilight_instant(day, track, zd, req.args["twilight"])
+    eye = s.eye_height_m if s.horizon == "sea" else 0.0
+    p = plan(utc, track, count=req.args["count"], eye_height_m=eye,
+             index_error_arcmin=s.index_error_arcmin, zone_description=zd,
+             how=f"{req.args['twilight']} twilight: the Sun's centre at −6° true (civil)")
+    st.say(f"date: {day:%Y-%m-%d} ({req.args['why']}); DR from the log along the legs",
+           *plan_lines(p))
+    _caution(st)
