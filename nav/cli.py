@@ -24,6 +24,7 @@ COMMAND_MODULES = (
     "nav.commands.compass_cmd",
     "nav.commands.identify_cmd",
     "nav.commands.plan_cmd",
+    "nav.commands.equal_cmd",
     "nav.commands.shell_cmd",
 )
 

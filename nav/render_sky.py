@@ -320,3 +320,47 @@ def plan_dict(p) -> dict:
          "minutes": round((p.window[1] - p.window[0]).total_seconds() / 60.0, 1)},
         "warnings": list(p.warnings),
     }
+
+
+# ---------------------------------------------------------------- equal altitudes
+
+def _arcmin_and_time(x_arcmin: float) -> str:
+    s = f"{x_arcmin:+.1f}′ ({abs(x_arcmin) * 4.0:.0f} s of time)"   # 1′ of arc = 4 s of time
+    return s.replace("-", MINUS)
+
+
+def equal_altitudes_lines(r) -> list[str]:
+    def hms(t):
+        return f"{t + timedelta(microseconds=500_000):%H:%M:%S}"
+
+    run = ("vessel still" if r.course_deg is None else
+           f"{r.course_deg:05.1f}° at {r.speed_kn:g} kn between the sights")
+    out = [f"Longitude by equal altitudes of the Sun on {r.t1:%Y-%m-%d}",
+           f"  forenoon sight  {hms(r.t1)} UTC   afternoon sight {hms(r.t2)} UTC",
+           f"  middle time     {hms(r.middle)} UTC   ({run})",
+           f"  DR latitude     {format_lat(r.lat_deg)}; the Sun at about {format_dm(r.alt_deg)}",
+           f"  from the middle time alone     {format_lon(r.lon_middle_only_deg)}",
+           f"  correction for the change of Dec {_arcmin_and_time(r.dec_correction_arcmin)}"
+           f"  (Dec changed {r.dec_change_arcmin:+.1f}′)".replace("-", MINUS),
+           f"  correction for the run         {_arcmin_and_time(r.run_correction_arcmin)}",
+           f"  longitude at the middle time   {format_lon(r.lon_noon_deg)}",
+           f"  longitude at the first sight   {format_lon(r.lon_first_deg)};  at the second "
+           f"{format_lon(r.lon_second_deg)}",
+           f"  1′ more latitude (north) moves the longitude {r.lon_per_lat_arcmin:+.2f}′ "
+           "(east +)".replace("-", MINUS),
+           "  A line of position (a longitude), not a fix."]
+    out += [f"  ! {w}" for w in r.warnings]
+    return out
+
+
+def equal_altitudes_dict(r) -> dict:
+    return {"first_utc": format_utc(r.t1), "second_utc": format_utc(r.t2),
+            "middle_utc": format_utc(r.middle), "lat_deg": _r(r.lat_deg),
+            "lon_deg": _r(r.lon_noon_deg), "lon_first_deg": _r(r.lon_first_deg),
+            "lon_second_deg": _r(r.lon_second_deg),
+            "lon_middle_only_deg": _r(r.lon_middle_only_deg),
+            "dec_correction_arcmin": _r(r.dec_correction_arcmin, 3),
+            "run_correction_arcmin": _r(r.run_correction_arcmin, 3),
+            "dec_change_arcmin": _r(r.dec_change_arcmin, 3),
+            "lon_per_lat_arcmin": _r(r.lon_per_lat_arcmin, 4),
+            "course_deg": r.course_deg, "speed_kn": r.speed_kn, "warnings": list(r.warnings)}

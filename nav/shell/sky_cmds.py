@@ -305,3 +305,45 @@ def run_plan(st, req) -> None:
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']}); DR from the log along the legs",
            *plan_lines(p))
     _caution(st)
+
+
+# ---------------------------------------------------------------- equal altitudes
+
+EQUAL_EXAMPLE = "equal-altitudes 11:00:00 17:20:00, or ... log"
+
+
+def parse_equal(args, line, ctx) -> Request:
+    """``equal-altitudes TIME1 TIME2 [log]`` (each TIME as `at` reads it: UTC)."""
+    from .times import parse_at
+
+    log = bool(args) and args[-1].text.lower() == "log"
+    if log:
+        args = args[:-1]
+    if len(args) != 2:
+        raise NavInputError("give the two times, forenoon then afternoon", field="at",
+                            example=EQUAL_EXAMPLE)
+    t1 = parse_at(args[0].text, ctx, "first", sight=True)
+    t2 = parse_at(args[1].text, ctx, "second", sight=True)
+    return Request("equal-altitudes", time=t1, args={"t2": t2, "log": log})
+
+
+def run_equal(st, req) -> None:
+    from ..angles import format_lon
+    from ..equal_altitudes import equal_altitudes
+    from ..render_sky import equal_altitudes_lines
+
+    t1, t2 = req.time, req.args["t2"]
+    w = st.passage.where(t1.utc)
+    leg = st.passage.leg_at(t1.utc)
+    moving = leg is not None and leg.course_deg is not None and leg.speed_kn > 0
+    r = equal_altitudes(t1.utc, t2.utc, w.lat_deg, w.lon_deg,
+                        course_deg=leg.course_deg if moving else None,
+                        speed_kn=leg.speed_kn if moving else 0.0)
+    st.say(f"first: {t1.explain}", f"second: {t2.explain}", f"DR basis: {w.describe()}",
+           *equal_altitudes_lines(r))
+    if req.args["log"]:
+        text = (f"longitude {format_lon(r.lon_noon_deg)} at {r.middle:%Y-%m-%d %H:%M:%S} UTC "
+                "by equal altitudes of the Sun: a line of position, not a fix")
+        e = st.append({"kind": "note", "text": text, "utc": r.middle})
+        st.say(f"logged {e.id}: note \"{text}\"")
+    _caution(st)
