@@ -31,6 +31,7 @@ from .errors import NavInputError
 MIN_INTERVAL_H = 1.0       # common practice, no source: sights too near noon give a weak cut
 MAX_INTERVAL_H = 10.0
 TOLERANCE_DEG = 1e-9
+POLAR_LIMIT_DEG = 85.0     # common practice, no source
 
 
 @dataclass(frozen=True)
@@ -104,6 +105,10 @@ def equal_altitudes(t1: datetime, t2: datetime, lat_deg: float, lon_deg: float, 
         raise NavInputError(f"{hours:.1f} h between the sights: they belong to one noon, "
                             f"at most {MAX_INTERVAL_H:g} h apart", field="t2",
                             example="sights 2 to 6 hours apart")
+    if abs(lat_deg) > POLAR_LIMIT_DEG:
+        raise NavInputError(f"within {90 - POLAR_LIMIT_DEG:g}° of a pole the Sun's altitude "
+                            "hardly changes through the day: no longitude by equal altitudes",
+                            field="dr_lat", example="a latitude below 85°")
     moving = course_deg is not None and speed_kn > 0
     course, speed = (course_deg, speed_kn) if moving else (0.0, 0.0)
     middle = t1 + (t2 - t1) / 2

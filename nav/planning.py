@@ -94,8 +94,12 @@ def twilight_instant(day: date, track, zone_description: timedelta, twilight: st
     roots = find_roots(func, start, end)["dep"]
     want = [t for t, rising in roots if rising == (twilight == "morning")]
     if not want:
+        from .ephemeris import FIRST_INSTANT, LAST_INSTANT
+
+        why = ("part of this date lies outside the supported range, not searched"
+               if start < FIRST_INSTANT or end > LAST_INSTANT else "polar day or night")
         raise NavInputError(f"the Sun's centre does not reach −{depression_deg:g}° in the "
-                            f"{twilight} of this date here (polar day or night)",
+                            f"{twilight} of this date here ({why})",
                             field="twilight", example="another date, or --utc")
     return from_datetime64(want[0])
 
@@ -215,9 +219,8 @@ def plan(utc: datetime, track, *, count: int = DEFAULT_COUNT, min_alt_deg: float
         if a.kind == "moon":
             limb = "upper" if limb_word == "upper" else "lower"
             wrong = limb_word != "lower"
-            note = ("the bright limb is the upper one: preset for the upper limb" if
-                    limb_word == "upper" else "the lit side is to one side: no clear limb to "
-                    "bring down" if limb_word == "side" else "")
+            note = ("bright limb upper: preset for it" if limb_word == "upper" else
+                    "no clear bright limb (lit to one side)" if limb_word == "side" else "")
         kind = a.kind if a.kind != "star" else "star"
         try:
             hs, _ = hs_for_ho(float(hc[i]), body_kind=a.kind, limb=limb, lat_deg=lat,

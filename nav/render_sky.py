@@ -295,7 +295,7 @@ def plan_lines(p) -> list[str]:
         if b.near_moon:
             flags.append("near the Moon")
         if b.kind == "moon":
-            flags.append(f"{b.limb} limb" + (": " + b.note if b.note else ""))
+            flags.append(b.note or f"{b.limb} limb")
         out.append(f"  {mark} {b.body:<16}{format_dm(b.hc_deg):>9}  {b.zn_deg:05.1f}°  {mag:>5}"
                    f"  {hs:>10}  {'; '.join(flags)}".rstrip())
     out += ["", f"  Suggested set (*): {', '.join(p.selection) or 'none'}",

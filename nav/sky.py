@@ -192,9 +192,15 @@ def find_roots(func, t_start: datetime, t_end: datetime, *, sample_min: float = 
 
     Hour-angle keys (ending in ``_lha``) count only their upward zero crossing and ignore the
     jump at ±180°. All brackets are refined together: each step is one call of `func`."""
+    from .ephemeris import FIRST_INSTANT, LAST_INSTANT
+
+    # The ends of the supported range (a zone date of 1 January 1900 starts on 31 December 1899
+    # west of Greenwich): the search stops there and an event beyond it is not found.
+    t_start, t_end = max(t_start, FIRST_INSTANT), min(t_end, LAST_INSTANT)
     n = int(np.ceil((t_end - t_start).total_seconds() / 60.0 / sample_min)) + 1
     grid = (to_datetime64(t_start - timedelta(minutes=sample_min))
             + (np.arange(n + 2) * sample_min * 60e6).astype("timedelta64[us]"))
+    grid = np.clip(grid, to_datetime64(FIRST_INSTANT), to_datetime64(LAST_INSTANT))
     values = func(grid)
     keys = list(values) if keys is None else list(keys)
     brackets = []                       # (key, t_a, t_b, g_a, g_b)
@@ -368,8 +374,11 @@ def sky_day(day: date, track: Track, *, zone_description: timedelta | None = Non
     present = {e.event for e in out}
     absent = tuple(c for c in EVENT_CODES if c not in present)
     if absent:
+        from .ephemeris import FIRST_INSTANT, LAST_INSTANT
+
         grid = (to_datetime64(start)
                 + (np.arange(0, 24 * 60 + 1, SAMPLE_MIN) * 60e6).astype("timedelta64[us]"))
+        grid = np.clip(grid, to_datetime64(FIRST_INSTANT), to_datetime64(LAST_INSTANT))
         g = func(grid)
         for key, up_code, down_code in _ROOTS:
             for code in (up_code, down_code):
@@ -377,6 +386,13 @@ def sky_day(day: date, track: Track, *, zone_description: timedelta | None = Non
                     absent_reasons[code] = _reason(key, np.asarray(g[key]))
     midday = start + timedelta(hours=12)
     warnings = []
+    from .ephemeris import FIRST_INSTANT, LAST_INSTANT, RANGE_TEXT
+
+    if start < FIRST_INSTANT or end > LAST_INSTANT:
+        warnings.append(f"part of this zone date lies outside the supported range {RANGE_TEXT}: "
+                        "events there are not searched")
+        absent_reasons = {c: r + " (or in the part of the date outside the supported range, "
+                          "not searched)" for c, r in absent_reasons.items()}
     if abs(track.lat_deg) > 60.0:
         warnings.append("in high latitudes the Sun and Moon cross the horizon at a shallow "
                         "angle: a small error in the DR or the refraction moves these times "

@@ -86,6 +86,9 @@ def test_refusals():
         equal_altitudes(t1, t1 - timedelta(hours=1), 20.0, -35.0)
     with pytest.raises(NavInputError):
         equal_altitudes(t1, t1 + timedelta(hours=13), 20.0, -35.0)
+    with pytest.raises(NavInputError) as e:
+        equal_altitudes(t1, t1 + timedelta(hours=4), 89.5, -35.0)
+    assert e.value.field == "dr_lat"
 
 
 def test_cli_and_shell(tmp_path, capsys):

@@ -286,3 +286,17 @@ def test_cli_sky_text_and_bad_input(capsys):
     assert main(["sky", "--date", "2026-06-21", "--dr-lat", "41 N", "--dr-lon", "32 W",
                  "--speed", "5"]) == 2
     assert "course" in capsys.readouterr().err
+
+
+def test_range_ends_are_searched_up_to_the_edge():
+    # zone −11 on 1 January 1900 starts at 13:00 UTC on 31 December 1899, outside the supported
+    # range: nav answers for the part inside and says so (no refusal, nothing invented)
+    from nav.ephemeris import FIRST_INSTANT
+
+    day = date(1900, 1, 1)
+    track, _ = noon_track(day, 10.0, 170.0, None, 0.0, None)
+    sky = sky_day(day, track)
+    assert sky.warnings and "supported range" in sky.warnings[0]
+    assert all(e.utc >= FIRST_INSTANT for e in sky.events)
+    assert "sunset" in [e.event for e in sky.events]
+    assert "sunrise" in sky.absent and "not searched" in sky.absent_reasons["sunrise"]

@@ -212,6 +212,7 @@ def run_compass(st, req) -> None:
     e = st.append(entry)
     st.say(f"logged {e.id}: compass check, {t.explain}", f"  DR basis     {w.describe()}",
            *compass_lines(c))
+    _caution(st)
 
 
 def parse_deviations(args, line, ctx) -> Request:
@@ -263,6 +264,7 @@ def run_identify(st, req) -> None:
                  eye_height_m=s.eye_height_m if s.horizon == "sea" else 0.0,
                  temperature_c=s.temperature_c, pressure_hpa=s.pressure_hpa)
     st.say(f"time: {t.explain}", f"DR basis: {w.describe()}", *identify_lines(r))
+    _caution(st)
 
 
 # ---------------------------------------------------------------- plan
