@@ -303,16 +303,18 @@ def build_bright_rows(path: Path) -> list[list[str]]:
             if sep <= MATCH_ARCMIN and abs(mag - hp_mag) <= MATCH_MAG and name not in taken_names:
                 if best is None or sep < best[0]:
                     best = (sep, name)
-        if best is not None:
-            label = best[1]
-        else:
-            con = get_constellation(SkyCoord(ra=ra_deg * u.deg, dec=dec_deg * u.deg),
-                                    short_name=True)
-            label = f"HIP {hip} ({con})"
+        label = best[1] if best is not None else None      # named below, all at once
         rows.append((ra_deg, [label, "", str(hip), f"{ra_deg:.10f}", f"{dec_deg:.10f}",
                               EPOCH_JYEAR, f"{float(rec['pmRA']):.2f}",
                               f"{float(rec['pmDE']):.2f}", f"{float(rec['Plx']):.2f}",
                               f"{hp_mag:.4f}", ""]))
+    unnamed = [row for _ra, row in rows if row[0] is None]
+    if unnamed:
+        cons = get_constellation(SkyCoord(ra=[float(r[3]) for r in unnamed] * u.deg,
+                                          dec=[float(r[4]) for r in unnamed] * u.deg),
+                                 short_name=True)
+        for row, con in zip(unnamed, cons):
+            row[0] = f"HIP {row[2]} ({con})"
     rows.sort(key=lambda item: item[0])
     labels = [r[1][0] for r in rows]
     if len(set(labels)) != len(labels):
