@@ -239,10 +239,8 @@ def _solar_body(instants: Instants, name: str) -> BodyAlmanac:
         hp_arcmin=hp, sd_arcmin=sd, magnitude=mag)
 
 
-@functools.lru_cache(maxsize=None)
-def _star_vectors():
-    """Catalogue positions (AU) and space velocities (AU/day) of every star, shape (3, N)."""
-    recs = _stars().star_table()
+def _vectors_of(recs):
+    """Catalogue positions (AU) and space velocities (AU/day) of star records, shape (3, N)."""
     ra = np.radians([r.ra_deg for r in recs])
     dec = np.radians([r.dec_deg for r in recs])
     plx_mas = np.array([r.parallax_mas for r in recs])
@@ -253,18 +251,25 @@ def _star_vectors():
     u = np.array([cd * cr, cd * sr, sd])
     e_ra = np.array([-sr, cr, np.zeros_like(cr)])
     e_dec = np.array([-sd * cr, -sd * sr, cd])
-    pos = u * dist_au
-    vel = (e_ra * pm_ra + e_dec * pm_dec) * dist_au
+    return u * dist_au, (e_ra * pm_ra + e_dec * pm_dec) * dist_au
+
+
+@functools.lru_cache(maxsize=None)
+def _star_vectors():
+    """Catalogue positions (AU) and space velocities (AU/day) of every star, shape (3, N)."""
+    recs = _stars().star_table()
+    pos, vel = _vectors_of(recs)
     index = {r.name: i for i, r in enumerate(recs)}
     return pos, vel, index, np.array([r.hp_mag for r in recs])
 
 
-def _star_places(instants: Instants, idx: np.ndarray, at=None):
+def _star_places(instants: Instants, idx: np.ndarray, at=None, vectors=None):
     """RA, Dec of date (degrees) of the stars `idx`: shape (k, n) at every instant (`at` None),
-    or (m,) for star idx[i] at instant at[i]."""
+    or (m,) for star idx[i] at instant at[i]. `vectors`: (pos, vel) of other records than the
+    navigational stars' (see :func:`_vectors_of`)."""
     from .apparent import ra_dec_of_date, star_apparent
 
-    pos, vel, _, _ = _star_vectors()
+    pos, vel = _star_vectors()[:2] if vectors is None else vectors
     whole, frac = instants.tdb_parts
     dt = (whole - HIPPARCOS_EPOCH_TT_JD) + frac
     e_pos, e_vel = instants.earth_state
@@ -319,6 +324,15 @@ def places_at(names: np.ndarray, instants: Instants, at: np.ndarray):
             if body_sd is not None:
                 sd[sel] = body_sd
     return gha, dec, hp, sd
+
+
+def catalogue_places(records, t):
+    """Apparent GHA, Dec and SHA (degrees, arrays over `records`) of any star records (e.g. the
+    bright stars of :func:`nav.stars.bright_star_table`) at one instant, as for the 58."""
+    instants = t if isinstance(t, Instants) else Instants(t)
+    ra, dec = _star_places(instants, np.arange(len(records)), vectors=_vectors_of(records))
+    ra, dec = _one(instants, ra), _one(instants, dec)
+    return norm360(instants.gha_aries_deg - ra), dec, norm360(360.0 - ra)
 
 
 def almanac(bodies, t, field: str = "utc") -> list[BodyAlmanac]:
