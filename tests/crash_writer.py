@@ -1,6 +1,6 @@
 """Helper for tests/test_logbook_crash.py: append entries to a passage log until killed.
 
-    python crash_writer.py LOG START [--tear]
+    python crash_writer.py LOG START [--tear] [--batch N]
 
 Opens LOG for writing (which sets aside a torn tail), prints ``ready``, then appends entries made
 by :func:`make_entry` from sequence number START on, printing ``<id> <seq>`` for each one only
@@ -10,6 +10,10 @@ after ``append()`` has returned (that is, after the fsync).
 that writes the line a few bytes at a time with pauses, so that a kill lands mid-line. (A kill
 cannot tear a real append: the kernel finishes a small write before the process dies; a power
 cut can.) The test data are invented.
+
+``--batch N`` stands in for ``nav import``: entries are appended N at a time with
+``append_many`` (one import), and ``<first id> <last id> <first seq> <N>`` is printed after each
+batch returned.
 """
 
 from __future__ import annotations
@@ -49,13 +53,19 @@ def _torn_write(fd: int, data: bytes) -> None:
 
 def main(argv: list[str]) -> int:
     sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
-    from nav import logbook
+    from nav import logbook, logwriter
 
     path, seq = argv[0], int(argv[1])
     log = logbook.PassageLog.open(path)
     if "--tear" in argv:
-        logbook._write_fully = _torn_write
+        logwriter._write_fully = _torn_write
     print("ready", flush=True)
+    if "--batch" in argv:
+        n = int(argv[argv.index("--batch") + 1])
+        while True:
+            added = log.append_many([make_entry(s) for s in range(seq, seq + n)])
+            print(added[0].id, added[-1].id, seq, n, flush=True)
+            seq += n
     while True:
         entry = log.append(make_entry(seq))
         print(entry.id, seq, flush=True)

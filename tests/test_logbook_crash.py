@@ -83,6 +83,8 @@ def test_sigkill_at_random_moments_loses_nothing_confirmed(tmp_path):
             assert extra[0] is loaded.entries[-1]
             unconfirmed.add(extra[0].id)
             stats[mode][2] += 1
+            seq += 1                         # it holds the next sequence number: a new sight
+            #                                  with the same body, UTC and Hs would be refused
 
         t = loaded.torn_tail
         if t is None:
