@@ -86,9 +86,9 @@ def _dangling(path: Path) -> str | None:
 def _refuse_missing(path: Path, field: str, example: str) -> None:
     target = _dangling(path)
     if target is not None:
-        raise NavInputError(f"{path} is a symbolic link to {target}, which does not exist",
-                            field=field, example=example)
-    raise NavInputError(f"{path}: no such file", field=field, example=example)
+        raise NavInputError(f"cannot read {path}: it is a symbolic link to {target}, which does "
+                            "not exist", field=field, example=example)
+    raise NavInputError(f"cannot read {path}: no such file", field=field, example=example)
 
 
 def open_input(path, field: str = "file", example: str = "sights.csv") -> int:
@@ -101,15 +101,15 @@ def open_input(path, field: str = "file", example: str = "sights.csv") -> int:
         _refuse_missing(p, field, example)
     except OSError as err:
         if err.errno == errno.ENXIO:           # a socket, or a FIFO that nothing writes to
-            raise NavInputError(f"{p} is not a regular file; nav reads only regular files",
-                                field=field, example=example) from None
-        raise NavInputError(f"{p} cannot be read ({err.strerror})", field=field,
+            raise NavInputError(f"cannot read {p}: it is not a regular file (nav reads only "
+                                "regular files)", field=field, example=example) from None
+        raise NavInputError(f"cannot read {p}: {err.strerror}", field=field,
                             example=example) from None
     try:
         what = _kind(os.fstat(fd).st_mode)
         if what:
-            raise NavInputError(f"{p} is {what}, not a regular file; nav reads only regular "
-                                "files", field=field, example=example)
+            raise NavInputError(f"cannot read {p}: it is {what}, not a regular file (nav reads "
+                                "only regular files)", field=field, example=example)
         if hasattr(os, "set_blocking"):
             os.set_blocking(fd, True)
     except BaseException:
@@ -131,7 +131,7 @@ def read_input(path, max_bytes: int, field: str = "file", example: str = "sights
         with os.fdopen(fd, "rb", closefd=False) as f:
             return f.read(max_bytes + 1)
     except OSError as err:
-        raise NavInputError(f"{path} cannot be read ({err.strerror})", field=field,
+        raise NavInputError(f"cannot read {path}: {err.strerror}", field=field,
                             example=example) from None
     finally:
         os.close(fd)

@@ -329,7 +329,10 @@ def _refuse_duplicates(dupes: list, n_entries: int) -> None:
     more = len(dupes) - MAX_DUPLICATES_NAMED
     o = dupes[0][2]
     first = f"{o['body']} at {o['utc'].replace('T', ' ')} with Hs {o.get('hs', o['hs_deg'])}"
-    if n_entries == 1:
+    if n_entries == 1 and dupes[0][0].startswith("the correction"):
+        msg = (f"{dupes[0][0]} would make it the same sight ({first}) as {dupes[0][1]}: one "
+               "observation counts once; it was not logged")
+    elif n_entries == 1:
         msg = (f"this sight ({first}) is already logged as {dupes[0][1]}: one observation "
                "counts once; it was not logged")
     else:
