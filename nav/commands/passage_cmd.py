@@ -194,6 +194,13 @@ def replay_demo(out_dir: Path, say=print, replace: bool = False) -> list[DemoFix
     except OSError as err:
         raise NavInputError(f"cannot create {out_dir} ({err.strerror})", field="out",
                             example="--out demo_output") from None
+    earlier = sorted(p.name for p in [*out_dir.glob("fix-*.png"), out_dir / "passage.png"]
+                     if os.path.lexists(p))
+    if earlier and not replace:        # refused before any work (the rule of nav.files)
+        raise NavInputError(f"{out_dir} already holds the pictures of an earlier run "
+                            f"({', '.join(earlier[:3])}{' ...' if len(earlier) > 3 else ''}); "
+                            "add --replace to replace them", field="out",
+                            example="nav demo --replace, or nav demo --out another_folder")
     log = load_log(log_path)
     passage = Passage(log)
     track = read_truth(truth_path)
