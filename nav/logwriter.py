@@ -328,7 +328,8 @@ def _refuse_duplicates(dupes: list, n_entries: int) -> None:
     named = "; ".join(f"{where} repeats {eid}" for where, eid, _ in dupes[:MAX_DUPLICATES_NAMED])
     more = len(dupes) - MAX_DUPLICATES_NAMED
     o = dupes[0][2]
-    first = f"{o['body']} at {o['utc'].replace('T', ' ')} with Hs {o.get('hs', o['hs_deg'])}"
+    first = (f"{o['body']} at {o['utc'][:19].replace('T', ' ')} UTC, Hs "
+             f"{o.get('hs', o['hs_deg'])}")
     if n_entries == 1 and dupes[0][0].startswith("the correction"):
         msg = (f"{dupes[0][0]} would make it the same sight ({first}) as {dupes[0][1]}: one "
                "observation counts once; it was not logged")

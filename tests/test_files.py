@@ -96,7 +96,9 @@ def test_export_refuses_an_existing_file_unless_asked_to_replace(tmp_path, capsy
     ("a/" * 2100 + "b.gpx", "the limit is 4,096"),
 ])
 def test_empty_and_over_long_names(name, words, capsys):
-    assert main(["export", str(DEMO_LOG), "--gpx", name]) == 2
+    assert main(["export", str(DEMO_LOG), "--gpx", name]) == 2       # as an output
+    assert words in one_line(capsys.readouterr().err)
+    assert main(["reduce", name]) == 2                                # and as an input
     assert words in one_line(capsys.readouterr().err)
 
 
