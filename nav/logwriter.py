@@ -33,7 +33,7 @@ from typing import Callable, Iterable, Mapping
 
 from . import __version__
 from .errors import NavInputError
-from .files import fsync_dir, write_fully, write_new_file
+from .files import check_input, fsync_dir, write_fully, write_new_file
 from .logbook import (
     FORMAT, FORMAT_VERSION, MAX_LOG_BYTES, DuplicateSightError, Entry, LoadedLog, LogFormatError,
     LogProblem, LogWriteError, _TORN_ID, _parse, _read_bytes, sight_key,
@@ -135,9 +135,15 @@ class PassageLog(LoadedLog):
         set aside (see the module doc of nav.logbook). ``clock`` (default: the wall clock)
         gives every logged_utc this log writes."""
         path, clock = Path(path), _checked_clock(clock)
-        data = _read_bytes(path, max_bytes)      # refuses a FIFO, a device, a folder at once
+        if not os.path.lexists(path):
+            raise LogFormatError("no such passage log", path=path)
+        try:                                     # a FIFO, a device, a folder: refused at once
+            check_input(path, field="log", example="sight_logs/passage.jsonl")
+        except NavInputError as err:
+            raise LogFormatError(err.reason, field="log") from None
         try:
-            fd = os.open(path, os.O_WRONLY | os.O_APPEND | getattr(os, "O_CLOEXEC", 0))
+            fd = os.open(path, os.O_WRONLY | os.O_APPEND | getattr(os, "O_NONBLOCK", 0)
+                         | getattr(os, "O_CLOEXEC", 0))
         except OSError as err:
             raise LogFormatError("no such passage log" if isinstance(err, FileNotFoundError)
                                  else f"cannot be opened for writing ({err.strerror})",

@@ -1,8 +1,8 @@
 """Imports are all or nothing: a writer appending batches (as ``nav import`` does, through
 ``append_many``) is killed with SIGKILL at random moments, many times.
 
-The writer is a forked child of the test process (nav already imported), so a kill costs
-milliseconds and the whole test a few seconds. After each kill the log is checked as a
+The writer (tests/crash_writer.py, :func:`run_forked`) is a forked child of the test process
+(nav already imported), so a kill costs milliseconds and the whole test a few seconds. After each kill the log is checked as a
 navigator needs it (common practice, no source):
 
 - every import that was confirmed (printed after append_many returned) is in the log, whole;
@@ -20,14 +20,10 @@ from __future__ import annotations
 
 import hashlib
 import importlib.util
-import os
 import random
-import signal
 import time
-import traceback
 from pathlib import Path
 
-from nav import logwriter
 from nav.logbook import PassageLog, load_log, new_log
 
 WRITER = Path(__file__).resolve().parent / "crash_writer.py"
@@ -39,46 +35,6 @@ SEED = 20260621
 KILLS = 40
 PER_LOG = 10
 BATCH = 6
-
-
-def _torn_write(fd: int, data: bytes) -> None:
-    for i in range(0, len(data), 61):
-        os.write(fd, data[i:i + 61])
-        time.sleep(0.0004)
-
-
-def _child(path: Path, seq: int, tear: bool, out: int) -> None:
-    """The writer: never returns (os._exit), reports through the pipe `out`."""
-    try:
-        if tear:
-            logwriter._write_fully = _torn_write
-        log = PassageLog.open(path)
-        os.write(out, b"ready\n")
-        while True:
-            added = log.append_many([crash_writer.make_entry(s) for s in range(seq, seq + BATCH)])
-            os.write(out, f"{added[0].id} {seq}\n".encode())
-            seq += BATCH
-    except BaseException:  # noqa: BLE001 - report anything, then leave without pytest's cleanup
-        os.write(out, ("error " + traceback.format_exc()).encode())
-        os._exit(1)
-
-
-def _run_once(path: Path, seq: int, tear: bool, wait_s: float) -> list[str]:
-    r, w = os.pipe()
-    pid = os.fork()
-    if pid == 0:  # pragma: no cover - the child
-        os.close(r)
-        _child(path, seq, tear, w)
-    os.close(w)
-    with os.fdopen(r, "rb") as f:
-        first = f.readline()
-        assert first == b"ready\n", first.decode() + f.read().decode()
-        time.sleep(wait_s)
-        os.kill(pid, signal.SIGKILL)
-        os.waitpid(pid, 0)
-        rest = f.read().decode()
-    assert "error" not in rest, rest
-    return rest.split("\n")[:-1]
 
 
 def _batches(entries) -> list[list]:
@@ -108,7 +64,8 @@ def test_sigkill_during_imports_leaves_all_or_none(tmp_path):
             confirmed: dict[str, int] = {}    # first id of an import -> its first seq
             seq = 0
         tear = bool(i % 4)
-        for line in _run_once(path, seq, tear, rng.uniform(0.001, 0.02)):
+        for line in crash_writer.run_forked(path, seq, tear, rng.uniform(0.001, 0.02),
+                                            batch=BATCH, tear_chunk=61):
             eid, s = line.split()
             confirmed[eid] = int(s)
             seq = max(seq, int(s) + BATCH)
