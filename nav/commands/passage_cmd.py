@@ -11,6 +11,11 @@
 - ``nav import SIGHTS.csv --log LOG [--new --vessel NAME --title TITLE]``: the sights of a batch
   file (the contract of ``nav reduce`` and ``nav fix``) appended to a passage log in one batch.
 
+Files follow :mod:`nav.files`: only regular files are read or written (a FIFO, a device or a
+folder is refused at once), and an existing output file (an export, the demo's pictures) is
+replaced only with ``--replace``. ``nav import`` refuses a sight that is already logged (the log
+checks it) and says, on opening, when an earlier import was cut off and set aside.
+
 Bad input is reported one problem per line on stderr, exit code 2, and nothing is written.
 """
 
