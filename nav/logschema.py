@@ -340,7 +340,9 @@ def typed_mismatch(kind: str, o: Mapping) -> tuple[str, str, str] | None:
             return (raw, f"'{text[:40]}' as typed no longer reads ({reason}); the stored "
                     f"{f.raw_of} {stored} is kept", "note")
         tol = TYPED_TOLERANCE_DEG if f.raw_of.endswith("_deg") else TYPED_TOLERANCE_OTHER
-        if not abs(value - stored) <= tol:
+        # an artificial horizon's reading is the double altitude: stored as read, or halved
+        halves = raw == "hs" and o.get("horizon") == "artificial"
+        if not abs(value - stored) <= tol and not (halves and abs(value / 2 - stored) <= tol):
             return (f.raw_of, f"is {stored}, but '{text[:40]}' as typed reads {value:.10g}: "
                     "one of them was changed after it was logged", "error")
     return None

@@ -25,6 +25,7 @@ from pathlib import Path
 import pytest
 
 from nav.cli import main
+from nav.errors import NavInputError
 from nav.logbook import LogFormatError, LogWriteError, PassageLog, load_log, new_log
 
 V1_DEMO = Path(__file__).resolve().parent / "data" / "v1-demo-passage.jsonl"
@@ -257,3 +258,26 @@ def test_nav_import_reports_a_cut_off_import_on_the_next_open(path, tmp_path, ca
     assert main(["import", str(deck), "--log", str(path)]) == 0
     err = capsys.readouterr().err
     assert "caution" in err and "cut off after 2 of them" in err
+
+
+def test_typed_values_are_checked_when_written_too(tmp_path):
+    with new_log(tmp_path / "t.jsonl", "Tern (invented)", "typed") as lg:
+        with pytest.raises(NavInputError, match="'33 19.7' as typed reads 33.32833333"):
+            lg.append(sight(1, hs_deg=33.5))
+        # an artificial horizon's reading (the double altitude) may be stored as read or halved
+        lg.append(sight(2, hs="101 20.0", hs_deg=(101 + 20 / 60) / 2, horizon="artificial"))
+        lg.append(sight(3, hs="101 20.0", hs_deg=101 + 20 / 60, horizon="artificial"))
+    assert problems(tmp_path / "t.jsonl") == []
+
+
+def test_typed_text_that_no_longer_reads_is_a_note_not_an_error(path):
+    ls = [json.loads(x) for x in lines(path)]
+    ls[1]["hs"] = "thirty-three"                  # e.g. a notation an older nav accepted
+    previous = ""
+    for o in ls:
+        o.pop("check")
+        c = json.dumps(o, sort_keys=True, ensure_ascii=False, separators=(",", ":")).encode()
+        o["check"] = previous = hashlib.sha256(previous.encode() + b"\n" + c).hexdigest()[:32]
+    write(path, [json.dumps(o, ensure_ascii=False).encode() for o in ls])
+    assert problems(path) == [(2, "hs", "note")]
+    PassageLog.open(path).close()                 # a note stops nothing
