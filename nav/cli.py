@@ -36,8 +36,9 @@ class _Parser(argparse.ArgumentParser):
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="nav",
-        description="Celestial-navigation sight-reduction workbench. A cross-check and teaching "
-                    "aid: it backs up, and never replaces, approved navigation.",
+        description="Celestial-navigation sight-reduction workbench: a cross-check that backs "
+                    "up, and never replaces, approved navigation practice, charts and "
+                    "instruments. The skipper stays responsible.",
     )
     from . import __version__
 
