@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import re
 import sys
+import textwrap
 from datetime import datetime
 from typing import Callable
 
@@ -36,13 +37,15 @@ class ShellState:
 
     def __init__(self, log: PassageLog, *, out=None, err=None,
                  clock: Callable[[], datetime] | None = None,
-                 ask: Callable | None = None, interactive: bool = False):
+                 ask: Callable | None = None, interactive: bool = False,
+                 width: Callable[[], int] | None = None):
         self.log = log
         self.out = out if out is not None else sys.stdout
         self.err = err if err is not None else self.out
         self._clock = clock or now_utc
         self._ask = ask
         self.interactive = interactive
+        self._width = width                # the terminal's width (None: one line per error)
         self._passage: Passage | None = None
         self.refused = 0                   # lines refused or failed (line mode: exit status)
         self.last_error: str | None = None
@@ -110,11 +113,26 @@ class ShellState:
             print(line, file=self.out)
         self.out.flush()
 
-    def error(self, text: str) -> None:
+    def wrap(self, text: str, indent: str = "  ") -> list[str]:
+        """`text` as lines of the terminal's width (one line when there is no terminal)."""
+        if self._width is None:
+            return [text]
+        width = max(40, int(self._width()) - 1)
+        return textwrap.wrap(text, width, subsequent_indent=indent, break_on_hyphens=False) \
+            or [text]
+
+    def error(self, text: str, *, kept: bool = False) -> None:
+        """An error in full, wrapped to the terminal's width. `kept`: the refused line stays at
+        the prompt for editing, and the message says so."""
         self.refused += 1
         text = _CONTROL.sub("?", text)      # typed control characters are not sent to the tty
         self.last_error = text
-        print(f"error: {text}", file=self.err)
+        lines = self.wrap(f"error: {text}")
+        if kept:
+            lines += self.wrap("  the line is kept at the prompt to be mended; Ctrl-C clears it",
+                               "    ")
+        for line in lines:
+            print(line, file=self.err)
         self.err.flush()
 
     def ask(self, label: str, default: str | None, check: Callable | None, kind: str | None) -> str:
@@ -157,10 +175,10 @@ class ShellState:
             if not self.interactive:
                 raise
             self.error(f"'{name}' interrupted; nothing more was logged")
-        except Exception as err:  # noqa: BLE001 - the shell goes on; no traceback
+        except Exception:  # noqa: BLE001 - the shell goes on; no traceback
             self._passage = None
-            self.error(f"internal error in '{name}' ({type(err).__name__}); nothing more was "
-                       "logged and the shell goes on; please report it")
+            self.error(f"internal error in '{name}': nothing more was logged and the shell "
+                       "goes on; please report it with the line you typed")
         return True
 
 
