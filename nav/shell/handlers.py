@@ -13,7 +13,7 @@ from .. import CAUTION
 from ..angles import format_arcmin, format_dm, format_lat, format_lon, norm180
 from ..errors import NavInputError
 from ..logbook import Entry
-from ..timekeeping import parse_utc
+from ..timekeeping import format_date_hms, format_hms, parse_utc
 from .times import parse_at, parse_zt, watch_text, zone_text
 from .words import OPTIONS
 from .state import Cancelled, iso_z
@@ -122,18 +122,19 @@ def time_explain(e) -> str:
     """How a logged sight's UTC came from what was typed."""
     t = parse_utc(e["utc"])
     if e.get("time_source") != "watch":
-        return f"UTC {t:%Y-%m-%d %H:%M:%S}" + (f" (typed {e['time_text']})"
+        return f"UTC {format_date_hms(t)}" + (f" (typed {e['time_text']})"
                                                  if e.get("time_text") else "")
     fast = e["watch_error_s"]
     watch = ("watch error none" if not fast else
              f"watch {abs(fast):g} s {'fast, subtracted' if fast > 0 else 'slow, added'}")
     return (f"watch {e.get('time_text', '?')}, {watch}; ZD {zone_text(e['zone_description_h'])}, "
-            f"UTC = ZT + ZD = {t:%Y-%m-%d %H:%M:%S}")
+            f"UTC = ZT + ZD = {format_date_hms(t)}")
 
 
 def sight_summary(data) -> str:
     limb = f" {LIMB_SHORT[data['limb']]}" if data.get("limb") else ""
-    return f"{data['body']}{limb} Hs {format_dm(data['hs_deg'])} at {data['utc'][11:19]} UTC"
+    return (f"{data['body']}{limb} Hs {format_dm(data['hs_deg'])} at "
+            f"{format_hms(parse_utc(data['utc']))}")
 
 
 def reduction_report(st, e) -> list[str]:

@@ -22,7 +22,8 @@ from typing import Mapping
 
 from ..errors import NavInputError, OutOfRangeError
 from ..fields import parse_sight_utc
-from ..timekeeping import parse_naive_time, parse_utc, zone_time_to_utc
+from ..timekeeping import (format_date_hms, parse_naive_time, parse_utc, round_to_second,
+                           zone_time_to_utc)
 
 _TIME_OF_DAY = re.compile(r"^(?P<h>\d{1,2}):(?P<m>\d{2})(?::(?P<s>\d{2}(?:\.\d+)?))?$")
 TIME_EXAMPLE = "at 20:55:00, at 2026-06-14T20:55:00Z or zt 17:55:12"
@@ -97,7 +98,7 @@ def parse_at(text: str, ctx, fld: str = "at", *, sight: bool = False) -> TimeRea
     if not m:
         t = check(text, fld)
         note = "" if text.strip().upper().endswith(("Z", "UTC")) else f" (given as {text})"
-        return TimeRead(t, "utc", text, f"UTC {t:%Y-%m-%d %H:%M:%S}{note}")
+        return TimeRead(t, "utc", text, f"UTC {format_date_hms(t)}{note}")
     day, why = _default_date(ctx, hms=_time_of_day(m))
     try:
         t = check(f"{day:%Y-%m-%d}T{_time_of_day(m)}Z", fld)
@@ -106,7 +107,7 @@ def parse_at(text: str, ctx, fld: str = "at", *, sight: bool = False) -> TimeRea
     except NavInputError:
         raise NavInputError(f"'{text}' is not a real time of day", field=fld,
                             example="20:55:00") from None
-    return TimeRead(t, "utc", text, f"UTC {t:%Y-%m-%d %H:%M:%S} (date {day:%Y-%m-%d}: {why})")
+    return TimeRead(t, "utc", text, f"UTC {format_date_hms(t)} (date {day:%Y-%m-%d}: {why})")
 
 
 def parse_zt(text: str, ctx, fld: str = "zt", *, sight: bool = False) -> TimeRead:
@@ -130,8 +131,8 @@ def parse_zt(text: str, ctx, fld: str = "zt", *, sight: bool = False) -> TimeRea
         parse_sight_utc(wt.utc.strftime("%Y-%m-%dT%H:%M:%S.%fZ"), fld)  # inside the ephemeris
     watch = ("watch error none" if not fast_s else
              f"watch {abs(fast_s):g} s {'fast, subtracted' if fast_s > 0 else 'slow, added'}")
-    explain = (f"watch {reading:%Y-%m-%d %H:%M:%S}{why}, {watch}: ZT {wt.zone_time:%H:%M:%S}; "
-               f"ZD {zone_text(zd_h)}, UTC = ZT + ZD = {wt.utc:%Y-%m-%d %H:%M:%S}")
+    explain = (f"watch {reading:%Y-%m-%d %H:%M:%S}{why}, {watch}: ZT {round_to_second(wt.zone_time):%H:%M:%S}; "
+               f"ZD {zone_text(zd_h)}, UTC = ZT + ZD = {format_date_hms(wt.utc)}")
     return TimeRead(wt.utc, "watch", f"{reading:%Y-%m-%d %H:%M:%S}", explain,
                     zone_description_h=zd_h, watch_error_s=fast_s, watch_reading=reading)
 
@@ -152,4 +153,4 @@ def parse_time_options(options: Mapping[str, str], ctx, *, sight: bool = False,
 
 def now_time(ctx) -> TimeRead:
     t = ctx.now()
-    return TimeRead(t, "now", "now", f"UTC {t:%Y-%m-%d %H:%M:%S} (now: no time was given)")
+    return TimeRead(t, "now", "now", f"UTC {format_date_hms(t)} (now: no time was given)")
