@@ -290,7 +290,7 @@ def test_completion_of_commands_bodies_and_options(state):
     assert completions(state, "set eye 2.5 h") == ["horizon"]
     assert completions(state, "set watch 12 ") == ["fast", "slow"]
     assert completions(state, "export ") == ["gpx", "geojson", "csv"]
-    assert completions(state, "help ti") == ["time"]
+    assert completions(state, "help ti") == ["title", "time"]
 
 
 def test_completion_of_entry_ids_and_fields(state):
@@ -440,7 +440,8 @@ def test_struck_sight_is_left_out_of_fix(state):
     assert "e0005 struck" in out
     (fix,) = state.log.effective_entries("fix")
     assert fix["sight_ids"] == ("e0004", "e0006")
-    assert "from the sights not used by a fix yet: e0004 e0006" in out
+    assert ("took e0004 e0006: the sights not used by a fix within 60 min before the latest of "
+            "them, e0006 at 23:01:00 UTC") in out
     out = run_lines(state, "fix e0004 e0005")
     assert "error: field 'sights': e0005 is struck" in out
     assert len(state.log.effective_entries("fix")) == 1
@@ -477,7 +478,10 @@ def test_correction_is_reparsed_and_logged_as_such(state):
     assert cur["utc"] == "2026-06-14T21:30:03Z" and cur["time_source"] == "watch"
     out = run_lines(state, "show e0003")
     assert "history:" in out and "corrected: misread the drum" in out
-    assert "hs 52 08.4 -> 52 18.4" in out
+    # the history in navigator notation, with the values as typed (no field names of the log)
+    assert "Hs: 52°08.4′ (typed 52 08.4) -> 52°18.4′ (typed 52 18.4)" in out
+    assert "limb: upper limb -> (none)" in out and "body: Sun -> Vega" in out
+    assert "_deg" not in out and "hs_deg" not in out
 
 
 def test_dr_correction_moves_the_track(state):
@@ -664,8 +668,9 @@ def test_show_and_correct_a_setting(state):
     assert "logged e0003: correction of e0002" in out
     assert state.settings.index_error_arcmin == -0.4 and state.settings.eye_height_m == 2.5
     out = run_lines(state, "show e0001", "show e0003", "log")
-    assert "e0001  passage" in out and "vessel                Kestrel Dawn (invented)" in out
-    assert "e0003: correct of e0002" in out and "index_error_arcmin 1.2 -> -0.4" in out
+    assert "e0001  passage log" in out and "vessel         Kestrel Dawn (invented)" in out
+    assert "e0003: correction of e0002" in out and "index error: +1.2′ -> −0.4′" in out
+    assert "_arcmin" not in out
     assert "e0002  setting  (logged" in out and "[corrected by e0003]" in out
 
 

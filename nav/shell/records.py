@@ -7,8 +7,9 @@ from pathlib import Path
 
 from ..angles import format_lat, format_lon
 from ..errors import NavInputError
-from .handlers import (dr_summary, reduction_report, setting_summary, show_reduction,
-                       sight_summary, time_explain, trial_reduce)
+from ..timekeeping import format_date_hms, format_hm, parse_utc
+from .entries import changed_labels, changes, field_lines, sight_summary, stale_note, summary
+from .handlers import reduction_report, show_reduction, time_explain, trial_reduce
 from .state import QUIT, iso_z
 
 MAX_IMPORT_ERRORS_SHOWN = 30
@@ -16,30 +17,13 @@ MAX_IMPORT_ERRORS_SHOWN = 30
 
 # ---------------------------------------------------------------- log, show
 
+KIND_WORD = {"passage": "passage log", "setting": "setting", "dr": "DR", "sight": "sight",
+             "fix": "fix", "note": "note", "strike": "strike", "correct": "correction",
+             "repair": "repair"}
+
+
 def entry_summary(e) -> str:
-    d = e.data
-    if e.kind == "setting":
-        return setting_summary(d)
-    if e.kind == "dr":
-        return dr_summary(d)
-    if e.kind == "sight":
-        return sight_summary(d)
-    if e.kind == "fix":
-        size = (f", ellipse {d['ellipse_semi_major_nmi']:.1f} × {d['ellipse_semi_minor_nmi']:.1f}"
-                " nmi" if "ellipse_semi_major_nmi" in d else "")
-        warn = f", {len(d.get('warnings', ()))} warning(s)" if d.get("warnings") else ""
-        return (f"{d['fix_kind'].replace('_', ' ')} {format_lat(d['lat_deg'])} "
-                f"{format_lon(d['lon_deg'])} from {' '.join(d['sight_ids'])}{size}{warn}")
-    if e.kind == "note":
-        text = " ".join(d["text"].split())
-        return text if len(text) <= 60 else text[:57] + "..."
-    if e.kind == "strike":
-        return f"strikes {d['target']}: {d['reason']}"
-    if e.kind == "correct":
-        return f"corrects {d['target']}: {d['reason']}"
-    if e.kind == "repair":
-        return f"torn line {d['torn_line']} set aside in {d['side_file']}"
-    return ""
+    return summary(e)
 
 
 def _marks(st, e) -> str:
@@ -48,14 +32,18 @@ def _marks(st, e) -> str:
     chain = st.log.history_of(e.id)[1:]
     marks = [f"corrected by {c.id}" for c in chain if c.kind == "correct"]
     marks += [f"STRUCK by {c.id}" for c in chain if c.kind == "strike"]
+    if e.kind == "fix" and st.lookup(e.id) is not None:
+        stale = stale_note(st, e)
+        if stale:
+            marks.append(f"! {stale}")
     return f"  [{'; '.join(marks)}]" if marks else ""
 
 
 def _when(e) -> str:
     utc = e.get("utc")
     if utc:
-        return f"{utc[:10]} {utc[11:19]}"
-    return f"(logged {e.logged_utc[11:16]})"
+        return format_date_hms(parse_utc(utc))
+    return f"(logged {format_hm(parse_utc(e.logged_utc))})"
 
 
 def run_log(st, req) -> None:
@@ -72,40 +60,43 @@ def run_log(st, req) -> None:
         st.say(f"{raw.id}  {raw.kind:<8} {_when(cur):<20} {entry_summary(cur)}{_marks(st, raw)}")
 
 
-def _value(v) -> str:
-    if isinstance(v, tuple):
-        return " ".join(map(str, v))
-    return str(v)
+def _logged(e) -> str:
+    return f"{format_date_hms(parse_utc(e.logged_utc))} UTC"
 
 
 def run_show(st, req) -> None:
     eid = req.args["id"]
     raw = st.raw(eid)
     if raw.kind in ("strike", "correct"):
-        st.say(f"{eid}: {raw.kind} of {raw['target']}, logged {raw.logged_utc}: {raw['reason']}")
+        st.say(f"{eid}: {KIND_WORD[raw.kind]} of {raw['target']}, logged {_logged(raw)}: "
+               f"{raw['reason']}")
         eid, raw = raw["target"], st.raw(raw["target"])
     cur = st.lookup(eid)
     shown = cur or raw
-    st.say(f"{eid}  {raw.kind}, logged {raw.logged_utc}" + ("" if cur or raw.kind in (
+    kind = KIND_WORD.get(raw.kind, raw.kind)
+    if raw.kind == "fix":
+        kind = shown["fix_kind"].replace("_", " ")
+    st.say(f"{eid}  {kind}, logged {_logged(raw)}" + ("" if cur or raw.kind in (
         "passage", "repair") else "  -- STRUCK"))
-    for k, v in shown.data.items():
-        if k not in ("id", "kind", "logged_utc"):
-            st.say(f"  {k:<22}{_value(v)}")
+    st.say(*field_lines({k: v for k, v in shown.data.items()
+                         if not (raw.kind == "fix" and k == "fix_kind")}))
     history = st.log.history_of(eid)[1:] if raw.kind not in ("passage",) else []
     if history:
         st.say("  history:")
         before = raw.data
         for h in history:
             if h.kind == "strike":
-                st.say(f"    {h.id} {h.logged_utc}  struck: {h['reason']}")
+                st.say(f"    {h.id} {_logged(h)}  struck: {h['reason']}")
                 continue
             after = h["replacement"]
-            changed = [f"{k} {_value(before.get(k, '(none)'))} -> {_value(after.get(k, '(none)'))}"
-                       for k in sorted(set(before) | set(after))
-                       if k not in ("id", "kind", "logged_utc") and before.get(k) != after.get(k)]
-            st.say(f"    {h.id} {h.logged_utc}  corrected: {h['reason']}")
-            st.say(*(f"      {c}" for c in changed))
+            st.say(f"    {h.id} {_logged(h)}  corrected: {h['reason']}")
+            st.say(*(f"      {c}" for c in changes(before, after)))
             before = after
+    if raw.kind == "fix" and cur is not None:
+        stale = stale_note(st, cur)
+        if stale:
+            st.say(f"  caution: this fix {stale}; strike it and run fix again to use the "
+                   "sights as they now stand")
     if raw.kind == "sight" and cur is not None:
         st.say(f"  time: {time_explain(cur)}")
         show_reduction(st, cur)
@@ -140,7 +131,7 @@ def run_correct(st, req) -> None:
     used = _fixes_using(st, eid) if kind == "sight" else []
     e = st.log.correct(eid, req.args["reason"], changes)
     st.changed()
-    names = ", ".join(sorted({k for k in changes if k not in ("kind",)}))
+    names = changed_labels(k for k in changes if k != "kind")
     st.say(f"logged {e.id}: correction of {eid} ({names}): {req.args['reason']}")
     if req.time is not None:
         st.say(f"  time: {req.time.explain}")

@@ -9,14 +9,14 @@ from __future__ import annotations
 import re
 import sys
 import textwrap
-from datetime import datetime
+from datetime import datetime, timedelta
 from typing import Callable
 
 from ..angles import format_arcmin, format_lat, format_lon
 from ..errors import NavError, NavInputError
 from ..logbook import Entry, PassageLog
 from ..passage import Passage, now_utc
-from ..timekeeping import UTC, parse_utc
+from ..timekeeping import UTC, format_date_hm, parse_utc
 
 
 class Cancelled(Exception):
@@ -24,6 +24,7 @@ class Cancelled(Exception):
 
 
 QUIT = object()
+LIVE_HOURS = 12          # a log whose latest entry is older than this is being entered after the fact
 _CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
 
 
@@ -51,13 +52,22 @@ class ShellState:
         self.last_error: str | None = None
 
     # ------------------------------------------------------------ the passage
+    def _named(self, key: str) -> str:
+        """The vessel's name or the passage title: the latest `vessel`/`title` setting, else the
+        log's header."""
+        names = self.__dict__.setdefault("_names", {})
+        if key not in names:
+            names[key] = next((e[key] for e in reversed(self.log.effective_entries("setting"))
+                               if key in e.data), self.log.header[key])
+        return names[key]
+
     @property
     def title(self) -> str:
-        return self.log.header["title"]
+        return self._named("title")
 
     @property
     def vessel(self) -> str:
-        return self.log.header["vessel"]
+        return self._named("vessel")
 
     @property
     def passage(self) -> Passage:
@@ -74,17 +84,18 @@ class ShellState:
         try:
             return self.log.append(entry)
         finally:
-            self._passage = None
+            self.changed()
 
     def changed(self) -> None:
         """The log changed (a strike or a correction): rebuild the passage when next asked."""
         self._passage = None
+        self.__dict__.pop("_names", None)
 
     def append_many(self, entries: list[dict]) -> list[Entry]:
         try:
             return self.log.append_many(entries)
         finally:
-            self._passage = None
+            self.changed()
 
     # ------------------------------------------------------------ context for the parsers
     def now(self) -> datetime:
@@ -96,6 +107,30 @@ class ShellState:
             if "utc" in e.data:
                 return parse_utc(e["utc"]), e.id
         return None, None
+
+    def latest(self) -> tuple[datetime | None, str | None]:
+        """The latest time of any entry that has one (in time, not log order), and its id."""
+        names = self.__dict__.setdefault("_names", {})
+        if "latest" not in names:
+            best = (None, None)
+            for e in self.log.effective_entries():
+                if "utc" in e.data:
+                    t = parse_utc(e["utc"])
+                    if best[0] is None or t >= best[0]:
+                        best = (t, e.id)
+            names["latest"] = best
+        return names["latest"]
+
+    def passage_now(self) -> tuple[datetime, str | None]:
+        """The time `where` and the toolbar answer for: the clock while the log is live (its
+        latest entry at most LIVE_HOURS before the clock), else the time of the latest entry
+        (a passage entered after the fact, or a clock behind the log). Returns (time, id of that
+        entry, or None for the clock)."""
+        now = self.now()
+        t, eid = self.latest()
+        if t is None or timedelta(0) <= now - t <= timedelta(hours=LIVE_HOURS):
+            return now, None
+        return t, eid
 
     def raw(self, eid: str) -> Entry | None:
         return self.log.entry_by_id(eid)
@@ -197,8 +232,13 @@ def status_line(st: ShellState | None) -> str:
     """The bottom toolbar: passage, UTC now, the DR/fix and its age, height of eye, IE."""
     if st is None:
         return f"choosing a passage log  |  UTC {now_utc():%H:%M:%S}"
-    now = st.now()
-    parts = [st.title[:32], f"UTC {now:%H:%M:%S}"]
+    clock = st.now()
+    try:
+        now, eid = st.passage_now()
+    except Exception:  # noqa: BLE001 - a toolbar must never break the prompt
+        now, eid = clock, None
+    parts = [st.title[:32], f"UTC {now:%H:%M:%S}" if eid is None else
+             f"latest entry {eid} {format_date_hm(now)} UTC (not the clock)"]
     try:
         s = st.settings
         try:
@@ -208,8 +248,8 @@ def status_line(st: ShellState | None) -> str:
             parts.append("no DR yet" if a is None else
                          f"last {a.basis if 'fix' in a.basis else a.basis.upper()} "
                          f"{format_lat(a.lat_deg)} {format_lon(a.lon_deg)} at "
-                         f"{a.utc:%Y-%m-%d %H:%M}")
+                         f"{format_date_hm(a.utc)}")
     except Exception:  # noqa: BLE001 - a toolbar must never break the prompt
-        return f"{st.title[:32]}  |  UTC {now:%H:%M:%S}"
+        return f"{st.title[:32]}  |  UTC {clock:%H:%M:%S}"
     parts.append(f"eye {s.eye_height_m:.1f} m  IE {format_arcmin(s.index_error_arcmin)}")
     return "  |  ".join(parts)

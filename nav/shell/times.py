@@ -151,6 +151,22 @@ def parse_time_options(options: Mapping[str, str], ctx, *, sight: bool = False,
     return None
 
 
+def passage_time(ctx) -> TimeRead:
+    """The time a question without a time is answered for (`where`, the toolbar): now while the
+    log is live, else the time of its latest entry, saying which (see ShellState.passage_now)."""
+    t, eid = ctx.passage_now()
+    if eid is None:
+        return TimeRead(t, "now", "now", f"UTC {format_date_hms(t)} (now: no time was given)")
+    clock = ctx.now()
+    days = (clock - t).total_seconds() / 86_400.0
+    gap = (f"{abs(days):.1f} d" if abs(days) >= 2 else f"{abs(days) * 24:.1f} h") + \
+        (" later" if days > 0 else " earlier")
+    return TimeRead(t, "latest", "latest", (
+        f"UTC {format_date_hms(t)} (the time of the latest entry, {eid}, not the clock: the "
+        f"clock reads {format_date_hms(clock)} UTC, {gap}, so the passage is taken as entered "
+        "after the fact)"))
+
+
 def now_time(ctx) -> TimeRead:
     t = ctx.now()
     return TimeRead(t, "now", "now", f"UTC {format_date_hms(t)} (now: no time was given)")
