@@ -194,6 +194,10 @@ def run_plot(st, req) -> None:
     track = [ExportPoint(t, lat, lon, _export_point_kind(b), "")
              for t, lat, lon, b in st.passage.track_points()]
     fixes, _ = points_from_log(st.log)
+    if not track and not fixes:
+        raise NavInputError("nothing to plot yet: the log holds no DR position and no fix; "
+                            "enter a DR, or take sights and run fix", field="plot",
+                            example="dr 41 12.5 N 032 07.1 W course 245 speed 6.5 at 18:00")
     out = Path(path) if path else _next_to_log(st, "-passage.png")
     plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out)
     st.say(f"passage plot written to {out}")
