@@ -73,9 +73,10 @@ def run_dr(st, req) -> None:
     if "course_deg" in e.data or "speed_kn" in e.data:
         run = fixes_across(st, req.time.utc)
         if run:
-            st.say(f"  caution: {' '.join(run)} {'was' if len(run) == 1 else 'were'} run on "
-                   "other legs: their sights were advanced across this time with the course "
-                   "and speed logged before; strike and run fix again to use this change")
+            st.say(*st.wrap(f"  caution: {' '.join(run)} {'was' if len(run) == 1 else 'were'} "
+                            "run on other legs: their sights were advanced across this time with "
+                            "the course and speed logged before; strike and run fix again to "
+                            "use this change", "    "))
     leg = st.passage.leg_at(req.time.utc)
     if "lat_deg" in e.data and (leg is None or leg.course_deg is None or not leg.speed_kn):
         st.say("  no course and speed in force: the DR stays here until you give them "
@@ -258,10 +259,10 @@ def _default_sights(st, start) -> list[str]:
                             f"({' '.join(took) or 'none'}) among {rule}; a fix needs two or more: "
                             "name them, or give a start time for a running fix", field="sights",
                             example=example)
-    st.say(f"took {' '.join(took)}: {rule}")
+    st.say(*st.wrap(f"took {' '.join(took)}: {rule}"))
     if left:
-        st.say(f"  left out, earlier: {' '.join(left)} (for a running fix with them, name the "
-               "sights or give a start time: fix from TIME)")
+        st.say(*st.wrap(f"  left out, earlier: {' '.join(left)} (for a running fix with them, "
+                        "name the sights or give a start time: fix from TIME)", "    "))
     return took
 
 
@@ -320,10 +321,10 @@ def stale_anchor(st, w) -> list[str]:
 def run_where(st, req) -> None:
     w = carried(st.passage, req.time.utc)
     hours = w.age.total_seconds() / 3600.0
-    st.say(f"Where at {req.time.explain}:",
+    st.say(*st.wrap(f"Where at {req.time.explain}:"),
            f"  position     {format_lat(w.lat_deg)}  {format_lon(w.lon_deg)}",
            f"  basis        {w.describe()}" + (f" (anchor {w.anchor.entry_id})"),
-           *stale_anchor(st, w))
+           *(x for line in stale_anchor(st, w) for x in st.wrap(line, "    ")))
     if w.course_deg is not None and w.speed_kn:
         st.say(f"  course       {w.course_deg:05.1f}°, speed {w.speed_kn:g} kn")
     if hours > 12:

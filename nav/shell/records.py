@@ -95,8 +95,8 @@ def run_show(st, req) -> None:
     if raw.kind == "fix" and cur is not None:
         stale = stale_note(st, cur)
         if stale:
-            st.say(f"  caution: this fix {stale}; strike it and run fix again to use the "
-                   "sights as they now stand")
+            st.say(*st.wrap(f"  caution: this fix {stale}; strike it and run fix again to use "
+                            "the sights as they now stand", "    "))
     if raw.kind == "sight" and cur is not None:
         st.say(f"  time: {time_explain(cur)}")
         show_reduction(st, cur)

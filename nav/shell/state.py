@@ -238,7 +238,7 @@ def status_line(st: ShellState | None) -> str:
     except Exception:  # noqa: BLE001 - a toolbar must never break the prompt
         now, eid = clock, None
     parts = [st.title[:32], f"UTC {now:%H:%M:%S}" if eid is None else
-             f"latest entry {eid} {format_date_hm(now)} UTC (not the clock)"]
+             f"latest entry {format_date_hm(now)} UTC"]
     try:
         s = st.settings
         try:
