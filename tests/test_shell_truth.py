@@ -195,3 +195,25 @@ def test_the_same_sight_time_reads_alike_everywhere_in_the_shell(state):
     assert not re.search(r"22:55:00(?!\.6Z)", out)                    # only as typed
     assert "Vega Hs 34°12.3′ at 22:55:01 UTC" in out                  # logged, and `log`
     assert "2026-06-14 22:55:01" in out and "Sight e0003: Vega, 2026-06-14 22:55:01 UTC" in out
+
+
+# ---------------------------------------------------------------- the registry is data
+
+def test_no_handler_or_parser_imports_the_registry_or_the_state_back():
+    """GUIDE §1: the registry lists commands and names their parser and handler; dispatch lives
+    beside it; no handler imports the registry (or the state, which reaches it) back."""
+    import ast
+    import importlib
+    from pathlib import Path
+
+    from nav.shell.registry import TABLE
+
+    modules = {f.__module__ for c in TABLE.list for f in (c.run, c.parse)} - {"nav.shell.registry"}
+    assert {"nav.shell.handlers", "nav.shell.records", "nav.shell.parse"} <= modules
+    for name in sorted(modules) + ["nav.shell.entries", "nav.shell.dispatch", "nav.shell.common"]:
+        tree = ast.parse(Path(importlib.import_module(name).__file__).read_text(encoding="utf-8"))
+        back = [n.module for n in ast.walk(tree) if isinstance(n, ast.ImportFrom) and n.level == 1
+                and n.module in ("registry", "state", "app")]
+        back += [a.name for n in ast.walk(tree) if isinstance(n, ast.ImportFrom) and n.level == 1
+                 and n.module is None for a in n.names if a.name in ("registry", "state", "app")]
+        assert back == [], (name, back)

@@ -18,7 +18,8 @@ from pathlib import Path
 from .. import CAUTION, __version__
 from ..errors import NavError, NavInputError
 from ..timekeeping import UTC
-from .state import Cancelled, ShellState, status_line
+from .common import Cancelled
+from .state import ShellState, status_line
 
 LOGS_DIR = "sight_logs"
 DEFAULT_VESSEL = "unnamed vessel"

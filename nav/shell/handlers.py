@@ -18,7 +18,7 @@ from ..timekeeping import format_date_hms, format_hms, parse_utc
 from .times import parse_at, parse_zt, passage_time, watch_text, zone_text
 from .entries import dr_summary, setting_summary, sight_summary
 from .words import OPTIONS
-from .state import Cancelled, iso_z
+from .common import Cancelled, iso_z
 
 MAX_WARNING = 200
 
@@ -205,9 +205,7 @@ def guided_sight(st) -> None:
         parts += ["note", note]
     line = " ".join(parts)
     st.say(f"as one line: {line}")
-    from .registry import parse_line
-
-    parsed = parse_line(line, st)
+    parsed = st.commands.parse_line(line, st)
     if parsed is None or parsed[1].args.get("guided"):
         raise Cancelled()
     run_sight(st, parsed[1])

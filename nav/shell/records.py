@@ -10,7 +10,7 @@ from ..errors import NavInputError
 from ..timekeeping import format_date_hms, format_hm, parse_utc
 from .entries import changed_labels, changes, field_lines, sight_summary, stale_note, summary
 from .handlers import reduction_report, show_reduction, time_explain, trial_reduce
-from .state import QUIT, iso_z
+from .common import QUIT, iso_z
 
 MAX_IMPORT_ERRORS_SHOWN = 30
 
@@ -286,8 +286,9 @@ def run_import(st, req) -> None:
 # ---------------------------------------------------------------- help, quit
 
 def run_help(st, req) -> None:
-    from .registry import ALIASES, COMMANDS, COMMANDS_LIST, TOPICS
-
+    table = st.commands
+    ALIASES, COMMANDS, COMMANDS_LIST, TOPICS = (table.aliases, table.by_name, table.list,
+                                                table.topics)
     topic = req.args["topic"]
     if topic is None:
         width = max(len(c.name) for c in COMMANDS_LIST)

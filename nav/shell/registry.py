@@ -1,24 +1,25 @@
-"""The one registry of shell commands: help, completion and dispatch all read it.
+"""The one registry of shell commands, as data: help, completion and dispatch all read it.
 
 Each :class:`Command` names its syntax, a summary, its parser (:mod:`nav.shell.parse`), its
-handler (:mod:`nav.shell.handlers` or :mod:`nav.shell.records`), its option words and what its
-first words are (for completion), with examples that the tests run.
+handler (:mod:`nav.shell.handlers`, :mod:`nav.shell.records` ...), its option words and what its
+first words are (for completion), with examples that the tests run. To add a command, add a row
+to COMMANDS_LIST. Dispatch lives beside it (:mod:`nav.shell.dispatch`); no handler imports this
+module: a handler that needs the table reads ``st.commands``.
 """
 
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass
 from typing import Callable
 
-from ..errors import NavInputError
 from . import handlers, meridian_cmds, records
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
                     parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
                     parse_name, parse_noon, parse_note, parse_plain, parse_plot, parse_set,
                     parse_show, parse_sight, parse_speed, parse_strike, parse_where)
-from .state import LIVE_HOURS
-from .words import CORRECTABLE, DR_WORDS, SETTING_WORDS, SIGHT_WORDS, tokenize
+from .common import LIVE_HOURS
+from .dispatch import CommandTable
+from .words import CORRECTABLE, DR_WORDS, SETTING_WORDS, SIGHT_WORDS
 
 
 @dataclass(frozen=True)
@@ -168,9 +169,6 @@ COMMANDS_LIST = (
     Command("quit", "quit", "leave the shell (also: exit, Ctrl-D)",
             parse_plain("quit", "quit"), records.run_quit, (), None, (), ("quit",), ("exit",)),
 )
-COMMANDS = {c.name: c for c in COMMANDS_LIST}
-ALIASES = {a: c.name for c in COMMANDS_LIST for a in c.aliases}
-
 TOPICS = {
     "time": (
         "TIME, wherever a command takes one:",
@@ -199,24 +197,6 @@ TOPICS = {
 }
 
 
-def find_command(word: str) -> Command:
-    key = word.lower()
-    key = ALIASES.get(key, key)
-    if key in COMMANDS:
-        return COMMANDS[key]
-    names = list(COMMANDS) + list(ALIASES)
-    near = difflib.get_close_matches(key, names, n=2, cutoff=0.6)
-    hint = f"; did you mean {' or '.join(near)}?" if near else "; type help for the list"
-    raise NavInputError(f"unknown command '{word[:40]}'{hint}", field="command",
-                        example="sight, fix, where, help")
-
-
-def parse_line(line: str, ctx) -> tuple[Command, Request] | None:
-    """A typed line -> its command and the request it makes (None for a blank line).
-
-    Raises NavInputError (field, example) for a line that is not valid."""
-    tokens = tokenize(line)
-    if not tokens:
-        return None
-    cmd = find_command(tokens[0].text)
-    return cmd, cmd.parse(tokens[1:], line, ctx)
+TABLE = CommandTable(COMMANDS_LIST, TOPICS)      # dispatch (nav.shell.dispatch) reads it
+COMMANDS, ALIASES = TABLE.by_name, TABLE.aliases
+find_command, parse_line = TABLE.find, TABLE.parse_line

@@ -13,24 +13,14 @@ from datetime import datetime, timedelta
 from typing import Callable
 
 from ..angles import format_arcmin, format_lat, format_lon
-from ..errors import NavError, NavInputError
+from ..errors import NavError
 from ..logbook import Entry, PassageLog
 from ..passage import Passage, now_utc
-from ..timekeeping import UTC, format_date_hm, parse_utc
+from ..timekeeping import format_date_hm, parse_utc
+from .common import LIVE_HOURS, QUIT, Cancelled, iso_z  # noqa: F401 - for the shell's parts
+from .dispatch import check, run_line
 
-
-class Cancelled(Exception):
-    """A guided entry given up (Ctrl-C, or the end of the input): nothing is logged."""
-
-
-QUIT = object()
-LIVE_HOURS = 12          # a log whose latest entry is older than this is being entered after the fact
 _CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
-
-
-def iso_z(t: datetime) -> str:
-    """An aware datetime as ISO 8601 UTC with Z, to the microsecond (what the log stores)."""
-    return t.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%S.%fZ")
 
 
 class ShellState:
@@ -39,7 +29,7 @@ class ShellState:
     def __init__(self, log: PassageLog, *, out=None, err=None,
                  clock: Callable[[], datetime] | None = None,
                  ask: Callable | None = None, interactive: bool = False,
-                 width: Callable[[], int] | None = None):
+                 width: Callable[[], int] | None = None, commands=None):
         self.log = log
         self.out = out if out is not None else sys.stdout
         self.err = err if err is not None else self.out
@@ -47,6 +37,7 @@ class ShellState:
         self._ask = ask
         self.interactive = interactive
         self._width = width                # the terminal's width (None: one line per error)
+        self._commands = commands          # the command table (None: the registry's)
         self._passage: Passage | None = None
         self.refused = 0                   # lines refused or failed (line mode: exit status)
         self.last_error: str | None = None
@@ -177,44 +168,23 @@ class ShellState:
         return self._ask(label, default, check, kind)
 
     # ------------------------------------------------------------ lines
-    def check(self, line: str) -> str | None:
-        """Why a line would be refused (None if it parses): the validator's answer on Enter."""
-        from .registry import parse_line
+    @property
+    def commands(self):
+        """The command table (the registry's, unless another was given)."""
+        if self._commands is None:
+            from .registry import TABLE
 
-        try:
-            parse_line(line, self)
-        except NavInputError as err:
-            return str(err)
-        except Exception:  # noqa: BLE001 - the run reports it as an internal error
-            return None
-        return None
+            self._commands = TABLE
+        return self._commands
+
+    def check(self, line: str) -> str | None:
+        """Why a line would be refused (None if it parses): the answer on Enter."""
+        return check(self.commands, self, line)
 
     def dispatch(self, line: str) -> bool:
         """Run one line. False when the shell should end. Never raises (but KeyboardInterrupt
         in line mode, which ends the shell)."""
-        from .registry import parse_line
-
-        name = line.strip().split(" ", 1)[0][:20] if line.strip() else ""
-        try:
-            parsed = parse_line(line, self)
-            if parsed is None:
-                return True
-            cmd, request = parsed
-            name = cmd.name
-            return cmd.run(self, request) is not QUIT
-        except Cancelled:
-            self.say(f"{name} cancelled; nothing was logged")
-        except NavError as err:           # NavInputError, LogWriteError: one clear line
-            self.error(str(err))
-        except KeyboardInterrupt:
-            if not self.interactive:
-                raise
-            self.error(f"'{name}' interrupted; nothing more was logged")
-        except Exception:  # noqa: BLE001 - the shell goes on; no traceback
-            self._passage = None
-            self.error(f"internal error in '{name}': nothing more was logged and the shell "
-                       "goes on; please report it with the line you typed")
-        return True
+        return run_line(self.commands, self, line)
 
 
 def position_brief(w) -> str:
