@@ -375,6 +375,7 @@ def test_guided_answer_refused_is_shown_and_kept(log_path, history):
     status, out = pipe_session(keys, log_path, history=history)
     assert status == 0
     assert "error: field 'hs': '95' is outside" in " ".join(out.split())
+    assert "the answer is kept to be mended; Ctrl-C gives up the whole entry" in out
     (s,) = load_log(log_path).effective_entries("sight")
     assert s["hs"] == "41 25.1"
 

@@ -165,8 +165,11 @@ def test_a_passage_entered_after_the_fact_answers_for_its_latest_entry(tmp_path)
         assert out.splitlines()[1] == at.splitlines()[1]              # the same position
         from nav.shell.state import status_line
 
-        assert "|  latest entry 2026-06-14 23:01 UTC  |  fix " in status_line(st) or \
-            "|  latest entry 2026-06-14 23:01 UTC  |  DR " in status_line(st)
+        assert "|  latest entry 2026-06-14 23:01 UTC  |  DR " in status_line(st)
+        from nav.shell.app import opening_lines
+
+        assert "at the latest entry, e0006, 2026-06-14 23:01 UTC (not the clock): DR " in \
+            "\n".join(opening_lines(st))
     finally:
         log.close()
 

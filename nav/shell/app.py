@@ -79,9 +79,13 @@ def opening_lines(st: ShellState) -> list[str]:
     head = f"passage '{st.title}', vessel {st.vessel}: " + (", ".join(parts) or "no entries yet")
     out = [head]
     try:
+        from ..timekeeping import format_date_hm
         from .state import position_brief
 
-        out.append(f"now: {position_brief(st.passage.where(st.now()))}")
+        t, eid = st.passage_now()
+        when = "now" if eid is None else \
+            f"at the latest entry, {eid}, {format_date_hm(t)} UTC (not the clock)"
+        out.append(f"{when}: {position_brief(st.passage.where(t))}")
     except NavError:
         pass
     out.append("type help for the commands, help COMMAND for one; quit (or Ctrl-D) leaves")
@@ -254,7 +258,7 @@ def _run_interactive(log, vessel, say, out, err, history_file, clock, refresh_in
                         check(text)
                     return text
                 except NavInputError as e:
-                    holder["st"].error(str(e), kept=True)
+                    holder["st"].error(str(e), kept=ShellState.KEPT_ANSWER)
                     typed = text
         except (KeyboardInterrupt, EOFError):
             raise Cancelled() from None

@@ -147,16 +147,19 @@ class ShellState:
         return textwrap.wrap(text, width, subsequent_indent=indent, break_on_hyphens=False) \
             or [text]
 
-    def error(self, text: str, *, kept: bool = False) -> None:
-        """An error in full, wrapped to the terminal's width. `kept`: the refused line stays at
-        the prompt for editing, and the message says so."""
+    KEPT_LINE = "the line is kept at the prompt to be mended; Ctrl-C clears it"
+    KEPT_ANSWER = "the answer is kept to be mended; Ctrl-C gives up the whole entry"
+
+    def error(self, text: str, *, kept: bool | str = False) -> None:
+        """An error in full, wrapped to the terminal's width. `kept`: the refused line (or the
+        answer, with `kept` the words to say) stays at the prompt for editing, and the message
+        says so."""
         self.refused += 1
         text = _CONTROL.sub("?", text)      # typed control characters are not sent to the tty
         self.last_error = text
         lines = self.wrap(f"error: {text}")
         if kept:
-            lines += self.wrap("  the line is kept at the prompt to be mended; Ctrl-C clears it",
-                               "    ")
+            lines += self.wrap("  " + (kept if isinstance(kept, str) else self.KEPT_LINE), "    ")
         for line in lines:
             print(line, file=self.err)
         self.err.flush()
