@@ -220,3 +220,23 @@ def test_no_handler_or_parser_imports_the_registry_or_the_state_back():
         back += [a.name for n in ast.walk(tree) if isinstance(n, ast.ImportFrom) and n.level == 1
                  and n.module is None for a in n.names if a.name in ("registry", "state", "app")]
         assert back == [], (name, back)
+
+
+COVERED = ("set", "dr", "course", "speed", "sight", "fix", "where", "noon", "latitude",
+           "longitude", "almanac", "log", "show", "strike", "correct", "note", "vessel", "title",
+           "plot", "export", "import", "help", "quit")
+
+
+def test_every_example_in_the_help_is_accepted(state):
+    """The help's examples are lines the shell accepts, on the story's log (tests/test_shell.py:
+    e0004, e0005, e0007 sights, e0003 a DR, e0008 the fix)."""
+    from test_shell import story_lines
+
+    run_lines(state, *story_lines()[:-1])
+    assert state.lookup("e0008").kind == "fix"
+    table = state.commands
+    for name in COVERED:
+        for example in table.by_name[name].examples:
+            assert state.check(example) is None, (example, state.check(example))
+    out = run_lines(state, "help")
+    assert all(f"  {name} " in out for name in COVERED)

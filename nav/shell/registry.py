@@ -113,7 +113,7 @@ COMMANDS_LIST = (
              "Polaris: at any LHA, solved exactly from its GHA and Dec at the DR longitude",
              "log: append the latitude as a note (a line of position, not a fix; the DR is "
              "not moved)"),
-            ("latitude e0005", "latitude e0009 log")),
+            ("latitude e0005", "latitude e0007 log")),
     Command("longitude", f"longitude ({TIME}) [log]",
             "longitude from the timed instant of the Sun's meridian passage",
             parse_longitude, meridian_cmds.run_longitude, ("at", "zt"), None,
@@ -152,7 +152,7 @@ COMMANDS_LIST = (
             "draw a fix's plotting sheet (default: the latest fix) or the passage",
             parse_plot, records.run_plot, (), "plot",
             ("without a file the plot goes next to the log, as <log>-<fix id>.png or "
-             "<log>-passage.png",), ("plot", "plot fix e0009 sheet.pdf", "plot passage")),
+             "<log>-passage.png",), ("plot", "plot fix e0008 sheet.pdf", "plot passage")),
     Command("export", "export gpx|geojson|csv [FILE]",
             "export fixes and track (GPX, GeoJSON) or the sights (CSV)",
             parse_export, records.run_export, (), "format",
