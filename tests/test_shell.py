@@ -139,9 +139,11 @@ def story_lines() -> list[str]:
 def pipe_session(keys, log_path, *, history=None, output=None, **kw) -> tuple[int, str]:
     """Run the shell in a real PromptSession reading `keys` from a pipe; (status, printed text).
 
-    `keys` is a string, or a list of strings sent one after another with a pause between them
-    (from a second thread), so that the session draws its screen (or finishes a completion)
-    before the next keys arrive. The pipe is closed after the keys, so the session always ends
+    `keys` is a string, or a list of strings and :class:`Shows` marks, sent in order from a
+    second thread: before the keys after a mark, the sender waits until the session's line holds
+    the mark's text (a completion finished, say), however slow the machine. Keys sent before the
+    session reads them are kept by prompt_toolkit for the next prompt (its type-ahead), so no
+    pause is needed otherwise. The pipe is closed after the keys, so the session always ends
     (end of input = Ctrl-D)."""
     import threading
     import time
@@ -155,15 +157,21 @@ def pipe_session(keys, log_path, *, history=None, output=None, **kw) -> tuple[in
     chunks = [keys] if isinstance(keys, str) else list(keys)
     buf = StringIO()
     with create_pipe_input() as inp:
-        def send():
-            for i, chunk in enumerate(chunks):
-                if i:
-                    time.sleep(PAUSE_S)
+        def send(app_session):
+            for chunk in chunks:
+                if isinstance(chunk, Shows):
+                    deadline = time.monotonic() + WAIT_S
+                    while time.monotonic() < deadline:
+                        app = app_session.app
+                        if app is not None and chunk.seen(app.current_buffer):
+                            break
+                        time.sleep(0.01)
+                    continue
                 inp.send_text(chunk)
             inp.close()
 
-        sender = threading.Thread(target=send, daemon=True)
-        with create_app_session(input=inp, output=output or DummyOutput()):
+        with create_app_session(input=inp, output=output or DummyOutput()) as app_session:
+            sender = threading.Thread(target=send, args=(app_session,), daemon=True)
             sender.start()
             status = run_shell(log_path, stdout=buf, stderr=buf, interactive=True,
                                history_file=history, clock=clock, refresh_interval=None, **kw)
@@ -171,7 +179,19 @@ def pipe_session(keys, log_path, *, history=None, output=None, **kw) -> tuple[in
     return status, buf.getvalue()
 
 
-PAUSE_S = 0.4
+class Shows:
+    """A mark in the keys of :func:`pipe_session`: wait until the line being edited is `text`
+    (and, with `menu`, its completions are ready, so that a Tab picks from them)."""
+
+    def __init__(self, text: str, menu: bool = False):
+        self.text, self.menu = text, menu
+
+    def seen(self, buffer) -> bool:
+        state = buffer.complete_state
+        return buffer.text == self.text and (not self.menu or bool(state and state.completions))
+
+
+WAIT_S = 30.0          # a bound on a wait, never reached on a working session
 
 
 def enter(*lines: str) -> str:
@@ -306,7 +326,8 @@ def test_completion_of_entry_ids_and_fields(state):
 
 
 def test_tab_completes_in_the_session(log_path, history):
-    keys = ["sight Veg", "\t", " 34 12.3 at 2026-06-14T22:55:00Z\r" + enter(DR_LINE, "quit")]
+    keys = ["sight Veg", Shows("sight Veg", menu=True), "\t", Shows("sight Vega"),
+            " 34 12.3 at 2026-06-14T22:55:00Z\r" + enter(DR_LINE, "quit")]
     status, out = pipe_session(keys, log_path, history=history)
     assert status == 0
     (sight,) = load_log(log_path).effective_entries("sight")

@@ -69,7 +69,7 @@ FIELDS: dict[str, tuple[str, object]] = {
         + (f", {d['ellipse_confidence']:.0%} confidence" if "ellipse_confidence" in d else ""))),
     "method": ("method", lambda d, k: d[k]),
     "warnings": ("warnings", lambda d, k: "; ".join(d[k]) if d[k] else "none"),
-    "source": ("entered by", lambda d, k: {"shell": "the shell"}.get(d[k], d[k])),
+    "source": ("entered from", lambda d, k: {"shell": "the shell"}.get(d[k], d[k])),
     "text": ("text", lambda d, k: d[k]),
     "note": ("note", lambda d, k: d[k]),
     "side_file": ("set aside in", lambda d, k: d[k]),
