@@ -125,7 +125,8 @@ def changed_labels(keys) -> str:
 
 
 def changes(before, after) -> list[str]:
-    """What a correction changed: ``Hs 52°08.4′ (typed 52 08.4) -> 52°18.4′ (typed 52 18.4)``."""
+    """What a correction changed, as shown and as typed:
+    ``Hs: 52°08.4′ (typed 52 08.4) -> 52°18.4′ (typed 52 18.4)``."""
     keys = [k for k in dict.fromkeys([*before, *after]) if k not in ("id", "kind", "logged_utc")
             and before.get(k) != after.get(k)]
     shown = list(dict.fromkeys(TWIN.get(k, k) for k in keys))

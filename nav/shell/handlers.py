@@ -11,7 +11,7 @@ from datetime import timedelta
 from types import MappingProxyType
 
 from .. import CAUTION
-from ..angles import format_arcmin, format_dm, format_lat, format_lon, norm180
+from ..angles import format_arcmin, format_lat, format_lon, norm180
 from ..errors import NavInputError
 from ..logbook import Entry
 from ..timekeeping import format_date_hms, format_hms, parse_utc

@@ -5,7 +5,6 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from ..angles import format_lat, format_lon
 from ..errors import NavInputError
 from ..timekeeping import format_date_hms, format_hm, parse_utc
 from .entries import changed_labels, changes, field_lines, sight_summary, stale_note, summary

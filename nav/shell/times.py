@@ -131,7 +131,8 @@ def parse_zt(text: str, ctx, fld: str = "zt", *, sight: bool = False) -> TimeRea
         parse_sight_utc(wt.utc.strftime("%Y-%m-%dT%H:%M:%S.%fZ"), fld)  # inside the ephemeris
     watch = ("watch error none" if not fast_s else
              f"watch {abs(fast_s):g} s {'fast, subtracted' if fast_s > 0 else 'slow, added'}")
-    explain = (f"watch {reading:%Y-%m-%d %H:%M:%S}{why}, {watch}: ZT {round_to_second(wt.zone_time):%H:%M:%S}; "
+    zt = round_to_second(wt.zone_time)
+    explain = (f"watch {reading:%Y-%m-%d %H:%M:%S}{why}, {watch}: ZT {zt:%H:%M:%S}; "
                f"ZD {zone_text(zd_h)}, UTC = ZT + ZD = {format_date_hms(wt.utc)}")
     return TimeRead(wt.utc, "watch", f"{reading:%Y-%m-%d %H:%M:%S}", explain,
                     zone_description_h=zd_h, watch_error_s=fast_s, watch_reading=reading)
