@@ -30,8 +30,11 @@ def _typed(d, raw: str, shown: str, value=None) -> str:
     return shown if text in plain else f"{shown} (typed {typed})"
 
 
-def _num(fmt):
-    return lambda d, k: fmt(d[k])
+def _east_west(deg: float) -> str:
+    """A compass error, variation or deviation in the trade's words (nav.compass.ew)."""
+    from ..compass import ew
+
+    return ew(deg)
 
 
 # field -> (label, how it is shown); a value as typed rides beside its parsed twin
@@ -61,6 +64,12 @@ FIELDS: dict[str, tuple[str, object]] = {
     "horizon": ("horizon", lambda d, k: d[k]),
     "sigma_arcmin": ("expected error", lambda d, k: f"{d[k]:g}′ (1σ)"),
     "fix_kind": ("kind", lambda d, k: d[k].replace("_", " ")),
+    "compass_bearing_deg": ("compass bearing", lambda d, k: f"{d[k]:05.1f}°"),
+    "heading_deg": ("heading", lambda d, k: f"{d[k]:05.1f}° by compass"),
+    "zn_deg": ("Zn", lambda d, k: f"{d[k]:05.1f}°"),
+    "compass_error_deg": ("compass error", lambda d, k: _east_west(d[k])),
+    "variation_deg": ("variation", lambda d, k: _east_west(d[k])),
+    "deviation_deg": ("deviation", lambda d, k: _east_west(d[k])),
     "sight_ids": ("from sights", lambda d, k: " ".join(d[k])),
     "ellipse_semi_major_nmi": ("error ellipse", lambda d, k: (
         f"{d[k]:.1f} × {d['ellipse_semi_minor_nmi']:.1f} nmi (semi-axes)"
@@ -189,6 +198,10 @@ def summary(e) -> str:
     if e.kind == "note":
         text = " ".join(d["text"].split())
         return text if len(text) <= 60 else text[:57] + "..."
+    if e.kind == "compass_check":
+        from .sky_cmds import compass_summary
+
+        return compass_summary(d)
     if e.kind == "strike":
         return f"strikes {d['target']}: {d['reason']}"
     if e.kind == "correct":

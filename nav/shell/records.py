@@ -26,7 +26,7 @@ def entry_summary(e) -> str:
 
 
 def _marks(st, e) -> str:
-    if e.kind not in ("setting", "dr", "sight", "fix", "note"):
+    if e.kind not in ("setting", "dr", "sight", "fix", "note", "compass_check"):
         return ""
     chain = st.log.history_of(e.id)[1:]
     marks = [f"corrected by {c.id}" for c in chain if c.kind == "correct"]
