@@ -55,6 +55,9 @@ def test_show_renders_every_kind_in_navigator_notation(state):
     assert "e0008  note, logged" in out and "-- STRUCK" in out and "struck: wrong note" in out
     assert "e0010: correction of e0002" in out and "index error: +1.2′ -> −0.4′" in out
     assert "  Hs             " in out and "  body           Vega" in out
+    out = run_lines(state, "compass Vega 080 heading 250 at 23:30:00", "log", "show e0011")
+    assert not INTERNAL.search(out) and "compass_check" not in out
+    assert "e0011  compass check, logged" in out and "  compass bearing 080.0°" in out
 
 
 # ---------------------------------------------------------------- fixes on changed sights

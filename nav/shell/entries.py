@@ -112,7 +112,7 @@ def field_lines(data, indent: str = "  ") -> list[str]:
         if k in HIDDEN:
             continue
         label, show = FIELDS.get(k, (k.replace("_", " "), lambda d, k: str(d[k])))
-        out.append(f"{indent}{label:<15}{show(data, k)}")
+        out.append(f"{indent}{label:<14} {show(data, k)}")
     return out
 
 

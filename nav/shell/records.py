@@ -18,7 +18,7 @@ MAX_IMPORT_ERRORS_SHOWN = 30
 
 KIND_WORD = {"passage": "passage log", "setting": "setting", "dr": "DR", "sight": "sight",
              "fix": "fix", "note": "note", "strike": "strike", "correct": "correction",
-             "repair": "repair"}
+             "repair": "repair", "compass_check": "compass check"}
 
 
 def entry_summary(e) -> str:
@@ -56,7 +56,8 @@ def run_log(st, req) -> None:
         st.say(f"(the latest {len(shown)} of {len(entries)} entries; `log all` lists them all)")
     for raw in shown:
         cur = st.lookup(raw.id) or raw
-        st.say(f"{raw.id}  {raw.kind:<8} {_when(cur):<20} {entry_summary(cur)}{_marks(st, raw)}")
+        kind = raw.kind.split("_")[0]           # compass_check: compass
+        st.say(f"{raw.id}  {kind:<8} {_when(cur):<20} {entry_summary(cur)}{_marks(st, raw)}")
 
 
 def _logged(e) -> str:
