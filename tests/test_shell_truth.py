@@ -173,6 +173,9 @@ def test_a_passage_entered_after_the_fact_answers_for_its_latest_entry(tmp_path)
 
         assert "at the latest entry, e0006, 2026-06-14 23:01 UTC (not the clock): DR " in \
             "\n".join(opening_lines(st))
+        out = run_lines(st, "note reefed")                            # no time: now, and why
+        assert ("now: no time was given); caution: the latest entry, e0006, is at 2026-06-14 "
+                "23:01:00 UTC: give at TIME if this belongs to the passage") in out
     finally:
         log.close()
 

@@ -169,5 +169,15 @@ def passage_time(ctx) -> TimeRead:
 
 
 def now_time(ctx) -> TimeRead:
+    """Now, for an entry given without a time; in a log entered after the fact (its latest entry
+    far from the clock) the explanation says so, as the entry may belong to the passage."""
     t = ctx.now()
-    return TimeRead(t, "now", "now", f"UTC {format_date_hms(t)} (now: no time was given)")
+    explain = f"UTC {format_date_hms(t)} (now: no time was given)"
+    latest = getattr(ctx, "passage_now", None)
+    if latest is not None:
+        ref, eid = latest()
+        if eid is not None:
+            explain += (f"; caution: the latest entry, {eid}, is at {format_date_hms(ref)} UTC: "
+                        "give at TIME if this belongs to the passage (strike it and enter it "
+                        "again)")
+    return TimeRead(t, "now", "now", explain)
