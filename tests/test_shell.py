@@ -602,7 +602,7 @@ def test_export_writes_files_and_never_overwrites(state, tmp_path):
 
 @pytest.mark.parametrize("typed", ["41 12.5 N 032 07.1 W", "41°12.5′N 32°07.1′W",
                                    "N41 12.5 W032 07.1", "41 12.5 N, 032 07.1 W",
-                                   "41.208333333333336 -32.118333333333336", "41 12.5 -32 07.1"])
+                                   "41.208333333333336 -32.118333333333336"])
 def test_dr_positions_in_every_accepted_form(state, typed):
     run_lines(state, f"dr {typed} at 2026-06-14T20:00:00Z")
     (dr,) = state.log.effective_entries("dr")
@@ -614,7 +614,13 @@ def test_dr_positions_in_every_accepted_form(state, typed):
 @pytest.mark.parametrize("typed, why", [("N41 12.5", "hemisphere of both"),
                                         ("41 12.5 N", "no longitude"),
                                         ("41 12.5 32", "not a latitude and a longitude"),
-                                        ("41 12.5 N 200 00 W", "outside 180° W to 180° E")])
+                                        ("41 12.5 N 200 00 W", "outside 180° W to 180° E"),
+                                        # issue 7 item 1: degrees and minutes need their letter
+                                        ("41 12.5 -32 07.1", "without N or S"),
+                                        ("41 12.5, 032 07.1", "without N or S"),
+                                        ("41 12.5 N, 032 07.1", "without E or W"),
+                                        ("032 07.1 W 41 12.5 N", "longitude first"),
+                                        ("032 07.1 W, 41 12.5 N", "swapped")])
 def test_dr_positions_refused(state, typed, why):
     out = run_lines(state, f"dr {typed} at 2026-06-14T20:00:00Z")
     assert out.startswith("error: ") and why in out

@@ -218,6 +218,10 @@ def option_fields(options: Mapping[str, str], skip=("at", "zt")) -> dict:
 def split_position(text: str, fld: str = "position") -> tuple[str, str]:
     """Latitude text and longitude text of a typed position (each parsed by nav.angles)."""
     example = "41 12.5 N 032 07.1 W, or 41.2083 -32.118"
+    letters = [c for c in text.upper() if c in "NSEW"]
+    if len(letters) == 2 and letters[0] in "EW" and letters[1] in "NS" and "," not in text:
+        raise NavInputError(f"'{text}' gives the longitude first: are the latitude and longitude "
+                            "swapped? Write the latitude first", field=fld, example=example)
     if "," in text:
         parts = [p.strip() for p in text.split(",")]
         if len(parts) != 2 or not all(parts):
