@@ -182,9 +182,11 @@ def parse_angle(text: str, field: str = "angle", *, min_deg: float = 0.0, max_de
     return deg
 
 
-def parse_altitude(text: str, field: str = "hs") -> float:
-    """A sextant altitude, 0° to 90° (a back sight or a negative dip sight is refused here)."""
-    return parse_angle(text, field, min_deg=-1.0, max_deg=90.0, example="34.205, 34 12.3 or 34°12.3'")
+def parse_altitude(text: str, field: str = "hs", *, max_deg: float = 90.0) -> float:
+    """A sextant altitude, −1° to 90° (a back sight is refused here). An artificial horizon's
+    reading is the double altitude: its parser (:mod:`nav.fields`) passes ``max_deg=180``."""
+    return parse_angle(text, field, min_deg=-1.0, max_deg=max_deg,
+                       example="34.205, 34 12.3 or 34°12.3'")
 
 
 def _both_forms(value_deg: float, pos: str, neg: str) -> str:

@@ -241,9 +241,11 @@ def noon_lines(p) -> list[str]:
     rows = [("UTC", f"{utc:%H:%M:%S}", f"{utc:%Y-%m-%d}")]
     if n.zone_time is not None:
         zt = _second(n.zone_time)
-        zd_h = n.zone_description.total_seconds() / 3600.0
+        from .timekeeping import format_zone_description
+
         rows.append(("zone time", f"{zt:%H:%M:%S}",
-                     f"ZD {zd_h:+g} h, UTC = ZT + ZD ({zt:%Y-%m-%d})"))
+                     f"ZD {format_zone_description(n.zone_description)} h, UTC = ZT + ZD "
+                     f"({zt:%Y-%m-%d})"))
     if p.watch_reading is not None:
         rows.append(("watch", f"{_second(p.watch_reading):%H:%M:%S}",
                      f"the watch reading to expect (watch {_watch_text(p.watch_error_s)})"))

@@ -54,6 +54,7 @@ def reduce_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> SightReduc
             lon_deg=np.array([r.dr_lon_deg for r in rows]), use_ap=use_ap)
     except NavInputError as err:
         if err.row is not None and 1 <= err.row <= len(rows):
+            err.line = rows[err.row - 1].line
             err.row = rows[err.row - 1].row
         raise
 
@@ -74,7 +75,7 @@ def refused_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> list:
         return []
     except NavInputError as err:
         if len(rows) == 1:
-            return [err if err.row is not None else err.at_row(rows[0].row)]
+            return [err if err.row is not None else err.at_row(rows[0].row).at_line(rows[0].line)]
     mid = len(rows) // 2
     return refused_rows(rows[:mid], use_ap=use_ap) + refused_rows(rows[mid:], use_ap=use_ap)
 

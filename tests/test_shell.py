@@ -325,7 +325,7 @@ def test_invalid_line_shows_its_error_and_logs_nothing(log_path, history):
     status, out = pipe_session(keys, log_path, history=history, output=output)
     assert status == 0
     drawn = re.sub(r"\x1b\[[0-9;?]*[A-Za-z]", "", screen.getvalue())
-    assert "field 'hs': '95' is outside -1° to 90°" in drawn            # parse_altitude's message
+    assert "field 'hs': Hs 95° is above 90°" in drawn    # nav.fields.check_hs_horizon's message
     assert "field 'horizon': 'sky' is not a horizon" in drawn           # parse_horizon's message
     assert [e.kind for e in load_log(log_path).entries] == ["passage"]  # nothing logged
     assert "logged" not in out
@@ -580,8 +580,8 @@ def test_import_of_a_batch_file(state, tmp_path):
                    "2026-06-14T22:58:00Z,Nosuchstar,34,,\n2026-06-14T23:00:00Z,Deneb,95,,\n",
                    encoding="utf-8")
     out = run_lines(state, f"import {bad}")
-    assert "row 2, field 'body'" in out and "row 3, field 'hs'" in out
-    assert "error: field 'file': 2 problem(s)" in out and "(rows 2, 3)" in out
+    assert "line 3, field 'body'" in out and "line 4, field 'hs'" in out
+    assert "error: field 'file': 2 problem(s)" in out and "(lines 3, 4)" in out
     assert len(state.log.entries) == 4                                # nothing appended
 
 

@@ -362,12 +362,15 @@ def run_export(args) -> int:
 # ---------------------------------------------------------------- nav import
 
 def _refuse(args, errors) -> None:
-    for err in errors:
-        print(f"nav import: {args.file}: {err}", file=sys.stderr)
-    rows = sorted({e.row for e in errors if e.row is not None})
+    from ..sightfile import summarise_errors
+
+    for line in summarise_errors(errors):
+        print(f"nav import: {args.file}: {line}", file=sys.stderr)
+    lines = sorted({e.line if e.line is not None else e.row for e in errors
+                    if e.line is not None or e.row is not None})
     raise _Reported(f"{len(errors)} problem(s) in {args.file}"
-                    + (f" (row{'s' if len(rows) > 1 else ''} {', '.join(map(str, rows[:20]))})"
-                       if rows else "") + "; nothing was logged", field="file",
+                    + (f" (line{'s' if len(lines) > 1 else ''} {', '.join(map(str, lines[:20]))})"
+                       if lines else "") + "; nothing was logged", field="file",
                     example="mend the file, then import again")
 
 
@@ -391,6 +394,8 @@ def run_import(args) -> int:
     sf = read_sight_file(args.file)
     if sf.errors:
         _refuse(args, list(sf.errors))
+    for warning in sf.warnings:
+        print(f"nav import: {args.file}: warning: {warning}", file=sys.stderr)
     rows = list(sf.rows)
     try:
         reduce_rows(rows)

@@ -7,6 +7,7 @@ import sys
 
 from .. import CAUTION
 from ..errors import NavInputError
+from ..sightfile import summarise_errors
 
 SKIP_HELP = "compute from the valid rows and list the bad ones (default: refuse a partly bad file)"
 
@@ -40,18 +41,26 @@ class _Reported(NavInputError):
     """Errors already printed one per line; the CLI adds a summary line."""
 
 
+def _where(errors) -> str:
+    """``line(s) 3, 5`` of the errors (rows where a line is not known)."""
+    lines = sorted({e.line if e.line is not None else e.row for e in errors
+                    if e.line is not None or e.row is not None})
+    return f"line(s) {', '.join(map(str, lines))}"
+
+
 def _load(args):
     from ..sightfile import read_sight_file
 
     sf = read_sight_file(args.file, skip_bad_rows=args.skip_bad_rows)
-    for err in sf.errors:
-        print(f"nav {args.command}: {args.file}: {err}", file=sys.stderr)
+    for line in summarise_errors(sf.errors):
+        print(f"nav {args.command}: {args.file}: {line}", file=sys.stderr)
     if sf.errors and not args.skip_bad_rows:
         raise _Reported(f"{len(sf.errors)} problem(s) in {args.file}; nothing was computed "
                         "(mend them, or use --skip-bad-rows)", field="file")
-    if sf.skipped_rows:
-        print(f"nav {args.command}: skipped row(s) {', '.join(map(str, sf.skipped_rows))}",
-              file=sys.stderr)
+    if sf.errors:
+        print(f"nav {args.command}: skipped {_where(sf.errors)}", file=sys.stderr)
+    for warning in sf.warnings:
+        print(f"nav {args.command}: {args.file}: warning: {warning}", file=sys.stderr)
     if not sf.rows:
         raise NavInputError("no valid sight left", field="file", example="utc,body,hs,dr_lat,dr_lon")
     return sf.rows
@@ -67,13 +76,13 @@ def _reduce(args, rows, use_ap=False):
         errors = refused_rows(rows, use_ap=use_ap)
         if not errors:
             raise
-    for err in errors:
-        print(f"nav {args.command}: {args.file}: {err}", file=sys.stderr)
+    for line in summarise_errors(errors):
+        print(f"nav {args.command}: {args.file}: {line}", file=sys.stderr)
     if not args.skip_bad_rows:
         raise _Reported(f"{len(errors)} problem(s) in {args.file}; nothing was computed "
                         "(mend them, or use --skip-bad-rows)", field="file")
     bad = {err.row for err in errors}
-    print(f"nav {args.command}: skipped row(s) {', '.join(map(str, sorted(bad)))}", file=sys.stderr)
+    print(f"nav {args.command}: skipped {_where(errors)}", file=sys.stderr)
     rows = tuple(r for r in rows if r.row not in bad)
     if not rows:
         raise NavInputError("no valid sight left", field="file", example="utc,body,hs,dr_lat,dr_lon")
@@ -92,6 +101,7 @@ def run_reduce(args) -> int:
         out = []
         for i, row in enumerate(rows):
             d = reduction_dict(red.sight(i), row=row.row)
+            d["line"] = row.line
             d.update(dr_lat_deg=round(row.dr_lat_deg, 7), dr_lon_deg=round(row.dr_lon_deg, 7),
                      dr_given=row.dr_given)
             out.append(d)
@@ -130,6 +140,7 @@ def run_fix(args) -> int:
         sights = []
         for i, row in enumerate(rows):
             d = reduction_dict(result.reductions.sight(i), row=row.row)
+            d["line"] = row.line
             d["residual_nmi"] = round(fix.residuals_nmi[i], 4)
             d["flagged"] = bool(fix.flags[i])
             d["advanced_nmi"] = round(result.lops[i].advanced_nmi, 4)

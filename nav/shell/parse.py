@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 from datetime import timedelta
 
 from ..errors import NavInputError
-from ..fields import check_limb, parse_body, parse_sight_utc
+from ..fields import check_hs_horizon, check_limb, parse_body, parse_sight_utc
 from .times import TimeRead, now_time, parse_at, parse_time_options
 from .words import (CORRECTABLE, DR_WORDS, EXPORT_FORMATS, NUMERIC_START, OPTIONS,
                     PLOT_EXTENSIONS, SETTING_WORDS, SIGHT_WORDS, Token, option_fields,
@@ -131,6 +131,7 @@ def parse_sight(args, line, ctx) -> Request:
     extra = option_fields(opts)
     entry["limb"] = check_limb(entry["body"], extra.pop("limb", None))
     entry.update(extra)
+    check_hs_horizon(entry["hs_deg"], entry.get("horizon") or ctx.settings.horizon)
     t = parse_time_options(opts, ctx, sight=True, required=True)
     entry.update(t.entry_fields())
     entry["source"] = "shell"
@@ -229,6 +230,9 @@ def parse_correct(args, line, ctx) -> Request:
                             "name a field and its new value", field="field",
                             example=f"fields of a {cur.kind}: " + ", ".join(words))
     changes = option_fields(opts)
+    if cur.kind == "sight" and ("hs_deg" in changes or "horizon" in changes):
+        check_hs_horizon(changes.get("hs_deg", cur["hs_deg"]),
+                         changes.get("horizon") or cur.get("horizon") or ctx.settings.horizon)
     t = parse_time_options(opts, ctx, sight=cur.kind == "sight")
     if t is not None:
         changes.update(t.entry_fields() if cur.kind == "sight" else

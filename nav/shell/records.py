@@ -244,13 +244,17 @@ def run_export(st, req) -> None:
 # ---------------------------------------------------------------- import
 
 def _refuse_file(st, path: str, errors) -> None:
-    for err in errors[:MAX_IMPORT_ERRORS_SHOWN]:
-        st.say(f"  {path}: {err}")
-    if len(errors) > MAX_IMPORT_ERRORS_SHOWN:
-        st.say(f"  ... and {len(errors) - MAX_IMPORT_ERRORS_SHOWN} more")
-    rows = sorted({e.row for e in errors if e.row is not None})
+    from ..sightfile import summarise_errors
+
+    said = summarise_errors(errors)
+    for line in said[:MAX_IMPORT_ERRORS_SHOWN]:
+        st.say(f"  {path}: {line}")
+    if len(said) > MAX_IMPORT_ERRORS_SHOWN:
+        st.say(f"  ... and {len(said) - MAX_IMPORT_ERRORS_SHOWN} more")
+    lines = sorted({e.line if e.line is not None else e.row for e in errors
+                    if e.line is not None or e.row is not None})
     raise NavInputError(f"{len(errors)} problem(s) in {path}" +
-                        (f" (rows {', '.join(map(str, rows[:20]))})" if rows else "") +
+                        (f" (lines {', '.join(map(str, lines[:20]))})" if lines else "") +
                         "; nothing was imported", field="file", example="mend the rows, then import")
 
 
@@ -262,6 +266,8 @@ def run_import(st, req) -> None:
     sf = read_sight_file(path)
     if sf.errors:
         _refuse_file(st, path, list(sf.errors))
+    for warning in sf.warnings:
+        st.say(f"  warning: {warning}")
     rows = list(sf.rows)
     try:
         reduce_rows(rows)
