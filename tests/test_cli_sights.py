@@ -379,7 +379,8 @@ def test_reduce_human_output_shows_every_step(tmp_path, capsys, at_truth):
     blocks = out.split("\n\n")
     for i, (item, cells) in enumerate(zip(doc, rows)):
         block = blocks[i]
-        assert block.startswith(f"Sight {i + 1}: {item['body']}")
+        # issue 7 item 8: a sight is named by its file line (header line 1, one line a row)
+        assert block.startswith(f"Sight {i + 1} (line {i + 2}): {item['body']}")
         for label in ("Hs", "index corr.", "dip", "Ha", "refraction", "Ho", "GHA", "Dec", "DR",
                       "LHA", "Hc", "Zn", "intercept"):
             assert re.search(rf"^  {re.escape(label)}\s", block, re.M), (label, block)

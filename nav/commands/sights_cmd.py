@@ -34,6 +34,9 @@ def register(sub) -> None:
                    help="probability the error ellipse is meant to cover (default 0.95)")
     f.add_argument("--plot", metavar="FILE.png|FILE.pdf", help="also draw the plotting sheet")
     f.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
+    f.add_argument("--use-doubtful", action="store_true",
+                   help="also use sights that their DR cannot explain (left out by default; "
+                        "each is named with the reason and any slip that explains it)")
     f.set_defaults(func=run_fix)
 
 
@@ -95,8 +98,11 @@ def _setting_notes(row) -> dict:
 
 
 def run_reduce(args) -> int:
+    from ..plausibility import doubtful_sights
     from ..render import reduction_dict, reduction_lines, sight_title
     rows, red = _reduce(args, _load(args), use_ap=args.ap)
+    doubts = {d.index: d for d in doubtful_sights(rows, red if not args.ap else
+                                                   _reduce(args, rows)[1])}
     if args.json:
         out = []
         for i, row in enumerate(rows):
@@ -104,15 +110,18 @@ def run_reduce(args) -> int:
             d["line"] = row.line
             d.update(dr_lat_deg=round(row.dr_lat_deg, 7), dr_lon_deg=round(row.dr_lon_deg, 7),
                      dr_given=row.dr_given)
+            d["doubtful"] = doubts[i].as_dict() if i in doubts else None
             out.append(d)
         json.dump(out, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
         return 0
     for i, row in enumerate(rows):
         s = red.sight(i)
-        print(sight_title(s, i + 1, row.row))
+        print(sight_title(s, i + 1, row.row, line=row.line))
         for line in reduction_lines(s, **_setting_notes(row)):
             print(line)
+        if i in doubts:
+            print(f"  !! DOUBTFUL, left out of a fix unless asked: {doubts[i].text()}")
         print()
     print(CAUTION)
     return 0
@@ -129,7 +138,8 @@ def run_fix(args) -> int:
     if len(rows) < 2:
         raise NavInputError("a fix needs at least two sights", field="file",
                             example="two or more rows of sights")
-    result = fix_from_rows(rows, confidence=args.confidence, reductions=red)
+    result = fix_from_rows(rows, confidence=args.confidence, reductions=red,
+                           keep_doubtful=args.use_doubtful)
     fix = result.fix
     if args.plot:
         from ..plotting import plot_fix_sheet
@@ -138,14 +148,23 @@ def run_fix(args) -> int:
                        title=f"{fix.kind.capitalize()} from {args.file}", path=args.plot)
     if args.json:
         sights = []
-        for i, row in enumerate(rows):
+        doubts = {d.index: d for d in result.doubts}
+        for i, row in enumerate(result.rows):
             d = reduction_dict(result.reductions.sight(i), row=row.row)
             d["line"] = row.line
             d["residual_nmi"] = round(fix.residuals_nmi[i], 4)
             d["flagged"] = bool(fix.flags[i])
             d["advanced_nmi"] = round(result.lops[i].advanced_nmi, 4)
+            k = result.used[i]
+            d["doubtful"] = doubts[k].as_dict() if k in doubts else None
             sights.append(d)
-        doc = {"fix": fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
+        left_out = []
+        for k in sorted(set(doubts) - set(result.used)):
+            row = rows[k]
+            left_out.append({"row": row.row, "line": row.line, "body": row.body,
+                             "utc": f"{row.utc:%Y-%m-%dT%H:%M:%S}Z", **doubts[k].as_dict()})
+        doc = {"fix": {**fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
+                       "left_out": left_out},
                "sights": sights, "caution": CAUTION}
         json.dump(doc, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")

@@ -258,7 +258,7 @@ def run_fix(st, req) -> None:
                                 "the last fix; a fix needs two or more (or name them)",
                                 field="sights", example="fix e0004 e0005 e0007")
         st.say(f"from the sights not used by a fix yet: {' '.join(ids)}")
-    result, entries = st.passage.fix_from(ids)
+    result, entries = st.passage.fix_from(ids, keep_doubtful=req.args.get("keep_doubtful", False))
     fix = result.fix
     lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg)
     e = st.append(fix_entry(fix, [x.id for x in entries]))

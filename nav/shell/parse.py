@@ -138,7 +138,12 @@ def parse_sight(args, line, ctx) -> Request:
     return Request("sight", entry=entry, time=t)
 
 
+USE_DOUBTFUL = "use-doubtful"
+
+
 def parse_fix(args, line, ctx) -> Request:
+    keep = [a for a in args if a.text.lower() == USE_DOUBTFUL and not a.quoted]
+    args = [a for a in args if a not in keep]
     ids = [_entry_id(a.text, ctx, "sights", kinds=("sight",)) for a in args]
     if len(set(ids)) != len(ids):
         raise NavInputError("a sight is named twice", field="sights", example="fix e0004 e0005")
@@ -146,7 +151,7 @@ def parse_fix(args, line, ctx) -> Request:
         if ctx.lookup(sid) is None:
             raise NavInputError(f"{sid} is struck; it cannot go into a fix", field="sights",
                                 example="the ids of sights that stand")
-    return Request("fix", args={"ids": ids})
+    return Request("fix", args={"ids": ids, "keep_doubtful": bool(keep)})
 
 
 def parse_where(args, line, ctx) -> Request:
