@@ -51,8 +51,7 @@ def allowed_nmi(dr_age_h: float) -> float:
 
 
 def _allowed_text(dr_age_h: float) -> str:
-    return (f"the {allowed_nmi(dr_age_h):.0f} nmi a DR {max(0.0, dr_age_h):.1f} h old allows "
-            f"({RULE_TEXT})")
+    return f"the {allowed_nmi(dr_age_h):.0f} nmi its DR ({max(0.0, dr_age_h):.1f} h old) allows"
 
 
 @dataclass(frozen=True)
@@ -72,8 +71,17 @@ class Doubt:
                    "explains it: check Hs, the time and the DR"
         return out
 
+
     def as_dict(self) -> dict:
         return {"reason": self.reason, "slips": list(self.slips)}
+
+
+class DoubtfulSightsError(NavInputError):
+    """Too few sights left once the doubtful ones are left out; `notes` says why, one a sight."""
+
+    def __init__(self, message: str, notes, **kw):
+        super().__init__(message, **kw)
+        self.notes = tuple(notes)
 
 
 def zone_description_of(lon_deg: float) -> int:
@@ -140,7 +148,8 @@ def _slips(row, allowed: float) -> tuple[str, ...]:
         text = f"{what} (Hc {format_dm(got[1])}, intercept {abs(got[0]):.1f} nmi)"
         (bodies if what.startswith("the body was") else named).append((abs(got[0]), text))
     bodies.sort()
-    return tuple(t for _, t in named) + tuple(t for _, t in bodies[:MAX_BODIES_NAMED])
+    best = min((x for x, _ in named), default=allowed)     # another body only if it fits better
+    return tuple(t for _, t in named) + tuple(t for x, t in bodies[:MAX_BODIES_NAMED] if x < best)
 
 
 def doubtful_sights(rows: Sequence, reductions) -> tuple[Doubt, ...]:
@@ -158,9 +167,9 @@ def doubtful_sights(rows: Sequence, reductions) -> tuple[Doubt, ...]:
                       f"{row.utc:%H:%M:%S} UTC (Hc {format_dm(float(hc[i]))}), yet Hs is "
                       f"{format_dm(row.hs_deg)}")
         else:
-            reason = (f"the intercept, {abs(float(x[i])):.1f} nmi, is more than "
+            reason = (f"intercept {abs(float(x[i])):.1f} nmi, more than "
                       f"{_allowed_text(row.dr_age_h)}")
-        out.append(Doubt(i, f"probably wrong: {reason}", _slips(row, allowed)))
+        out.append(Doubt(i, reason, _slips(row, allowed)))
     return tuple(out)
 
 
@@ -169,5 +178,5 @@ def far_from_dr(dist_nmi: float, dr_age_h: float, what: str = "fix") -> str | No
     if dist_nmi <= allowed_nmi(dr_age_h):
         return None
     return (f"{FAR_FROM_DR}: the {what} is {dist_nmi:.1f} nmi from its DR, more than "
-            f"{_allowed_text(dr_age_h)}. Check the DR (its N/S and E/W), the sights' times "
-            "(UTC, date) and bodies before using it")
+            f"{_allowed_text(dr_age_h)}. Check the DR's N/S and E/W, the times (UTC, date) and "
+            "the bodies before using it")

@@ -117,8 +117,7 @@ def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
     """
     from dataclasses import replace
 
-    from .errors import NavInputError
-    from .plausibility import doubtful_sights, far_from_dr
+    from .plausibility import DoubtfulSightsError, doubtful_sights, far_from_dr
 
     rows = tuple(rows)
     red = reductions if reductions is not None else reduce_rows(rows)
@@ -130,16 +129,16 @@ def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
             r = rows[d.index]
             where = f"line {r.line}" if r.line is not None else f"row {r.row}"
             notes.append(f"{r.body} {r.utc:%H:%M:%S} ({where}) "
-                         + ("kept in the fix though " if keep_doubtful else "left out of the fix: ")
+                         + ("kept though doubtful: " if keep_doubtful else "left out, doubtful: ")
                          + d.text())
         if not keep_doubtful:
             bad = {d.index for d in doubts}
             used = tuple(i for i in used if i not in bad)
             if len(used) < 2:
-                raise NavInputError(
+                raise DoubtfulSightsError(
                     f"a fix needs two or more sights, and {len(bad)} of the {len(rows)} are "
-                    "doubtful: " + " | ".join(notes), field="sights",
-                    example="mend the doubtful sights, or ask to use them")
+                    "doubtful (each is named above with why)", notes, field="sights",
+                    example="mend them, or ask to use the doubtful sights")
     kept = tuple(rows[i] for i in used)
     if len(kept) != len(rows):
         red = reduce_rows(kept)

@@ -121,7 +121,7 @@ def run_reduce(args) -> int:
         for line in reduction_lines(s, **_setting_notes(row)):
             print(line)
         if i in doubts:
-            print(f"  !! DOUBTFUL, left out of a fix unless asked: {doubts[i].text()}")
+            print(f"  !! DOUBTFUL (left out of a fix unless asked): {doubts[i].text()}")
         print()
     print(CAUTION)
     return 0
@@ -138,8 +138,16 @@ def run_fix(args) -> int:
     if len(rows) < 2:
         raise NavInputError("a fix needs at least two sights", field="file",
                             example="two or more rows of sights")
-    result = fix_from_rows(rows, confidence=args.confidence, reductions=red,
-                           keep_doubtful=args.use_doubtful)
+    from ..plausibility import DoubtfulSightsError
+
+    try:
+        result = fix_from_rows(rows, confidence=args.confidence, reductions=red,
+                               keep_doubtful=args.use_doubtful)
+    except DoubtfulSightsError as err:
+        for note in err.notes:
+            print(f"nav fix: {args.file}: {note}", file=sys.stderr)
+        raise _Reported(err.reason + "; --use-doubtful computes the fix with them",
+                        field=err.field) from None
     fix = result.fix
     if args.plot:
         from ..plotting import plot_fix_sheet

@@ -175,6 +175,22 @@ def run_sight(st, req) -> None:
                f"`show {e.id}`")
         return
     show_reduction(st, e)
+    say_doubt(st, e)
+
+
+def say_doubt(st, e) -> None:
+    """Say why a logged sight is probably wrong, if its DR cannot explain it (nav.plausibility)."""
+    from ..plausibility import doubtful_sights
+    from ..workflow import reduce_rows
+
+    try:
+        row = st.passage.reduction_view(e).sight_row(e)
+        doubts = doubtful_sights([row], reduce_rows([row]))
+    except NavInputError:
+        return
+    for d in doubts:
+        st.say(*textwrap.wrap(f"!! doubtful, left out of fixes unless asked (fix ... use-doubtful):"
+                              f" {d.text()}", 96, initial_indent="  ", subsequent_indent="     "))
 
 
 def _answer_time(st, text: str):
@@ -258,7 +274,15 @@ def run_fix(st, req) -> None:
                                 "the last fix; a fix needs two or more (or name them)",
                                 field="sights", example="fix e0004 e0005 e0007")
         st.say(f"from the sights not used by a fix yet: {' '.join(ids)}")
-    result, entries = st.passage.fix_from(ids, keep_doubtful=req.args.get("keep_doubtful", False))
+    from ..plausibility import DoubtfulSightsError
+
+    try:
+        result, entries = st.passage.fix_from(ids,
+                                              keep_doubtful=req.args.get("keep_doubtful", False))
+    except DoubtfulSightsError as err:
+        st.say(*(f"  {note}" for note in err.notes))
+        raise NavInputError(err.reason + "; `fix ... use-doubtful` computes it with them",
+                            field=err.field, example="fix e0004 e0005 use-doubtful") from None
     fix = result.fix
     lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg)
     e = st.append(fix_entry(fix, [x.id for x in entries]))

@@ -7,8 +7,8 @@ from pathlib import Path
 
 from ..angles import format_lat, format_lon
 from ..errors import NavInputError
-from .handlers import (dr_summary, reduction_report, setting_summary, show_reduction,
-                       sight_summary, time_explain, trial_reduce)
+from .handlers import (dr_summary, reduction_report, say_doubt, setting_summary,
+                       show_reduction, sight_summary, time_explain, trial_reduce)
 from .state import QUIT, iso_z
 
 MAX_IMPORT_ERRORS_SHOWN = 30
@@ -290,6 +290,7 @@ def run_import(st, req) -> None:
             red = reduce_rows([st.passage.sight_row(e)]).sight(0)
             st.say(f"  {e.id}  {sight_summary(e.data)}  intercept {float(red.intercept_nmi):+.1f}"
                    f" nmi, Zn {float(red.zn_deg):05.1f}°" + ("  !" if red.warnings else ""))
+            say_doubt(st, e)
         except NavInputError as err:
             st.say(f"  {e.id}  {sight_summary(e.data)}  not reduced: {err.reason}")
 
