@@ -256,7 +256,7 @@ class Passage:
         last = rows[-1]
         runs = [self.run(r.utc, last.utc, r.dr_lat_deg, r.dr_lon_deg) for r in rows]
         result = fix_from_rows(rows, confidence=confidence, runs=runs,
-                               keep_doubtful=keep_doubtful)
+                               keep_doubtful=keep_doubtful, names=[e.id for e, _ in chosen])
         return result, [chosen[i][0] for i in result.used]
 
     # ------------------------------------------------------------ for plots and export

@@ -103,7 +103,7 @@ def run_between(row: SightRow, fix_row: SightRow) -> tuple[float | None, float]:
 def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
                   confidence: float = 0.95, reductions: SightReductions | None = None,
                   runs: Sequence[tuple[float | None, float]] | None = None,
-                  keep_doubtful: bool = False) -> FixResult:
+                  keep_doubtful: bool = False, names: Sequence[str] | None = None) -> FixResult:
     """The fix (or running fix) at the time of the last sight (or `fix_utc`).
 
     Each earlier sight is advanced to the fix time by the vessel's run: by default the run between
@@ -127,7 +127,8 @@ def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
     if doubts:
         for d in doubts:
             r = rows[d.index]
-            where = f"line {r.line}" if r.line is not None else f"row {r.row}"
+            where = (names[d.index] if names is not None else
+                     f"line {r.line}" if r.line is not None else f"row {r.row}")
             notes.append(f"{r.body} {r.utc:%H:%M:%S} ({where}) "
                          + ("kept though doubtful: " if keep_doubtful else "left out, doubtful: ")
                          + d.text())
