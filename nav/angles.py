@@ -198,8 +198,10 @@ def _both_forms(value_deg: float, pos: str, neg: str) -> str:
             f"{dec:.4f} ({MINUS}{dec:.4f} for {neg})")
 
 
-def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, example: str) -> float:
-    """A latitude or longitude. Rules (one place for the CLI, the CSV files and the shell):
+def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, example: str,
+                       kind: str | None = None) -> float:
+    """A latitude or longitude (or, with `kind`, another value named E/W). Rules (one place for
+    the CLI, the CSV files and the shell):
 
     - degrees and minutes must carry their hemisphere letter (``35 10.1 N``): without it a slip
       of a W or S turns into a position thousands of miles away, so it is refused (0° and 180°,
@@ -211,11 +213,12 @@ def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, 
     if not isinstance(text, str):
         text = str(text)
     s = text.strip()
-    kind, other = field_kind(pos), field_kind("E" if pos == "N" else "N")
+    position = kind is None
+    kind, other = kind or field_kind(pos), field_kind("E" if pos == "N" else "N")
     m = _HEMI_RE.match(s)
     if not s or not m:
         letters = [c for c in s.upper() if c in "NSEW"]
-        swapped = letters and all(c not in (pos, neg) for c in letters)
+        swapped = position and letters and all(c not in (pos, neg) for c in letters)
         raise NavInputError(
             f"'{text}' names a {other} ({letters[0]}) in the {kind} field: are the latitude and "
             "longitude swapped?" if swapped else f"'{text}' is not a {kind}",
@@ -226,7 +229,8 @@ def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, 
     hemi = (h1 or h2 or "").upper()
     if hemi and hemi not in (pos, neg):
         raise NavInputError(f"'{text}' names a {other} ({hemi}) in the {kind} field: are the "
-                            f"latitude and longitude swapped? A {kind} takes {pos} or {neg}",
+                            f"latitude and longitude swapped? A {kind} takes {pos} or {neg}"
+                            if position else f"'{text}': a {kind} takes {pos} or {neg}",
                             field=field, example=example)
     value, has_minutes = _parse_dm_parts(body, field, example)
     if hemi:
@@ -237,10 +241,11 @@ def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, 
             value = -value
     elif has_minutes and abs(value) not in (0.0, 180.0):   # the equator, 0° and 180° have no side
         raise NavInputError(f"'{text}' is in degrees and minutes without {pos} or {neg}: say which "
-                            f"hemisphere", field=field, example=_both_forms(value, pos, neg))
+                            f"{'hemisphere' if position else 'side'}", field=field,
+                            example=_both_forms(value, pos, neg) if position else example)
     if not (-limit <= value <= limit):
         hint = (": is this a longitude (latitude and longitude swapped?)"
-                if pos == "N" and abs(value) <= 180.0 else "")
+                if position and pos == "N" and abs(value) <= 180.0 else "")
         raise NavInputError(f"'{text}' is outside {limit:g}° {neg} to {limit:g}° {pos}{hint}",
                             field=field, example=example)
     return value
@@ -258,6 +263,13 @@ def parse_lat(text: str, field: str = "lat") -> float:
 def parse_lon(text: str, field: str = "lon") -> float:
     """Longitude in signed degrees (east +) from ``032 07.1 W``, ``32°07.1′E``, ``-32.118``."""
     return _parse_signed_hemi(text, field, "E", "W", 180.0, "032 07.1 W or signed decimal -32.118")
+
+
+def parse_east_west(text: str, field: str = "variation") -> float:
+    """A variation, deviation or compass error in signed degrees (east +): ``9 W``, ``3.5E``,
+    ``2°30′ W``, ``-9``; at most 180°."""
+    return _parse_signed_hemi(text, field, "E", "W", 180.0, "9 W, 3.5 E or -9 (east +)",
+                              kind="value east or west")
 
 
 _HEIGHT_RE = re.compile(rf"^\s*(?P<v>{_NUM})\s*(?P<u>m|metres?|meters?|ft|feet|foot|')?\s*$", re.I)
