@@ -127,6 +127,9 @@ def test_nav_fix_leaves_a_doubtful_sight_out_unless_asked(tmp_path, capsys):
     assert any("kept though doubtful" in w for w in doc["fix"]["warnings"])
     code, out, _ = _run(capsys, "reduce", str(path))
     assert code == 0 and out.count("DOUBTFUL") == 1
+    code, _, err = _run(capsys, "import", str(path), "--log", str(tmp_path / "l.jsonl"), "--new",
+                        "--vessel", "Sula Brae", "--title", "Horta to Porto Santo")
+    assert code == 0 and "line 3, Arcturus: doubtful" in err        # logged as typed, and said
 
 
 def test_a_fix_far_from_its_dr_is_warned_in_text_json_and_on_the_sheet(tmp_path, capsys):

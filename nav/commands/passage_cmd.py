@@ -398,14 +398,21 @@ def run_import(args) -> int:
         print(f"nav import: {args.file}: warning: {warning}", file=sys.stderr)
     rows = list(sf.rows)
     try:
-        reduce_rows(rows)
+        red = reduce_rows(rows)
     except NavInputError:
         errors = refused_rows(rows)
         if not errors:
             raise
         _refuse(args, errors)
+    from ..plausibility import doubtful_sights
+
+    doubts = doubtful_sights(rows, red)   # logged as typed, but said (nav fix leaves them out)
     entries = entries_from_rows(rows, Path(args.file).name)
     log = new_log(args.log, args.vessel, args.title) if args.new else PassageLog.open(args.log)
+    for d in doubts:
+        r = rows[d.index]
+        print(f"nav import: {args.file}: warning: line {r.line}, {r.body}: doubtful, left out of "
+              f"fixes unless asked: {d.text()}", file=sys.stderr)
     try:
         _append(args, log, rows, entries)
     except BaseException:
