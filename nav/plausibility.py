@@ -40,6 +40,7 @@ from .errors import NavInputError
 DR_BASE_NMI = 50.0
 DR_DRIFT_KN = 2.0
 MAX_BODIES_NAMED = 3
+MAX_SEARCHED = 20                    # doubtful sights whose slips are searched (each ~70 reductions)
 FAR_FROM_DR = "FAR FROM DR"          # the head of the fix's warning (the renderers find it by it)
 RULE_TEXT = (f"{DR_BASE_NMI:g} nmi + {DR_DRIFT_KN:g} kn \u00d7 the hours since the DR was set "
              "from a position")
@@ -157,11 +158,12 @@ def doubtful_sights(rows: Sequence, reductions) -> tuple[Doubt, ...]:
     with its reason and the slips that would explain it. `reductions`: the rows reduced."""
     hc = np.atleast_1d(reductions.hc_deg)
     x = np.atleast_1d(reductions.intercept_nmi)
+    ages = np.array([row.dr_age_h for row in rows], dtype=float)
     out = []
-    for i, row in enumerate(rows):
+    for i in np.flatnonzero(np.abs(x) > DR_BASE_NMI + DR_DRIFT_KN * np.maximum(ages, 0.0)):
+        i = int(i)
+        row = rows[i]
         allowed = allowed_nmi(row.dr_age_h)
-        if abs(float(x[i])) <= allowed:
-            continue
         if hc[i] < 0:
             reason = (f"{row.body} was {format_dm(-float(hc[i]))} below the horizon at the DR at "
                       f"{row.utc:%H:%M:%S} UTC (Hc {format_dm(float(hc[i]))}), yet Hs is "
@@ -169,7 +171,11 @@ def doubtful_sights(rows: Sequence, reductions) -> tuple[Doubt, ...]:
         else:
             reason = (f"intercept {abs(float(x[i])):.1f} nmi, more than "
                       f"{_allowed_text(row.dr_age_h)}")
-        out.append(Doubt(i, reason, _slips(row, allowed)))
+        if len(out) < MAX_SEARCHED:
+            out.append(Doubt(i, reason, _slips(row, allowed)))
+        else:
+            out.append(Doubt(i, reason + f" (slips searched for the first {MAX_SEARCHED} doubtful "
+                             "sights only)", ()))
     return tuple(out)
 
 

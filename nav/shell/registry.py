@@ -220,6 +220,8 @@ TOPICS = {
         "                             set by `set zone` and `set watch`:",
         "                             ZT = watch − watch error (a fast watch is subtracted),",
         "                             UTC = ZT + ZD (ZD + in west longitude: ZD +3 for 45° W)",
+        "                             ZD from -12 to +12, written +3, -10 or -5:30; an ISO offset",
+        "                             such as +03:00 has the opposite sign and is refused",
         "Entries other than sights are for now (UTC) when no time is given; a sight needs its time.",
     ),
     "position": (
@@ -227,6 +229,8 @@ TOPICS = {
         "  41 12.5 N 032 07.1 W    41°12.5′N 32°07.1′W    N41 12.5 W032 07.1",
         "  or signed decimal degrees (north +, east +): 41.2083 -32.118",
         "  a comma may separate them: 41 12.5 N, 032 07.1 W",
+        "Degrees and minutes without N/S or E/W are refused (a lost W is thousands of miles);",
+        "a longitude first, or a W in the latitude, is named as a swap.",
     ),
 }
 
