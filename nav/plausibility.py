@@ -62,11 +62,14 @@ class Doubt:
     index: int                   # the sight's place in the rows given
     reason: str
     slips: tuple[str, ...]
+    searched: bool = True        # False: too many doubtful sights to search them all
 
     def text(self) -> str:
         out = self.reason
         if self.slips:
             out += "; it fits if " + "; or if ".join(self.slips)
+        elif not self.searched:
+            out += f" (slips searched for the first {MAX_SEARCHED} doubtful sights only)"
         else:
             out += "; no single slip (zone time as UTC, a day out, a hemisphere, another body) " \
                    "explains it: check Hs, the time and the DR"
@@ -174,8 +177,7 @@ def doubtful_sights(rows: Sequence, reductions) -> tuple[Doubt, ...]:
         if len(out) < MAX_SEARCHED:
             out.append(Doubt(i, reason, _slips(row, allowed)))
         else:
-            out.append(Doubt(i, reason + f" (slips searched for the first {MAX_SEARCHED} doubtful "
-                             "sights only)", ()))
+            out.append(Doubt(i, reason, (), searched=False))
     return tuple(out)
 
 
