@@ -27,7 +27,7 @@ from datetime import datetime
 from pathlib import Path
 
 from .. import CAUTION
-from ..errors import NavInputError
+from ..errors import NavInputError, printable
 
 DEMO_NAME = "demo-azores-madeira"
 DEMO_OUT = "demo_output"
@@ -365,7 +365,7 @@ def _refuse(args, errors) -> None:
     from ..sightfile import summarise_errors
 
     for line in summarise_errors(errors):
-        print(f"nav import: {args.file}: {line}", file=sys.stderr)
+        print(f"nav import: {printable(args.file)}: {line}", file=sys.stderr)
     lines = sorted({e.line if e.line is not None else e.row for e in errors
                     if e.line is not None or e.row is not None})
     raise _Reported(f"{len(errors)} problem(s) in {args.file}"
@@ -395,7 +395,7 @@ def run_import(args) -> int:
     if sf.errors:
         _refuse(args, list(sf.errors))
     for warning in sf.warnings:
-        print(f"nav import: {args.file}: warning: {warning}", file=sys.stderr)
+        print(f"nav import: {printable(args.file)}: warning: {warning}", file=sys.stderr)
     rows = list(sf.rows)
     try:
         red = reduce_rows(rows)
@@ -411,7 +411,7 @@ def run_import(args) -> int:
     log = new_log(args.log, args.vessel, args.title) if args.new else PassageLog.open(args.log)
     for d in doubts:
         r = rows[d.index]
-        print(f"nav import: {args.file}: warning: line {r.line}, {r.body}: doubtful, left out of "
+        print(f"nav import: {printable(args.file)}: warning: line {r.line}, {r.body}: doubtful, left out of "
               f"fixes unless asked: {d.text()}", file=sys.stderr)
     try:
         _append(args, log, rows, entries)

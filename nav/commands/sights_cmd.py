@@ -6,7 +6,7 @@ import json
 import sys
 
 from .. import CAUTION
-from ..errors import NavInputError
+from ..errors import NavInputError, printable
 from ..sightfile import summarise_errors
 
 SKIP_HELP = "compute from the valid rows and list the bad ones (default: refuse a partly bad file)"
@@ -56,14 +56,14 @@ def _load(args):
 
     sf = read_sight_file(args.file, skip_bad_rows=args.skip_bad_rows)
     for line in summarise_errors(sf.errors):
-        print(f"nav {args.command}: {args.file}: {line}", file=sys.stderr)
+        print(f"nav {args.command}: {printable(args.file)}: {line}", file=sys.stderr)
     if sf.errors and not args.skip_bad_rows:
         raise _Reported(f"{len(sf.errors)} problem(s) in {args.file}; nothing was computed "
                         "(mend them, or use --skip-bad-rows)", field="file")
     if sf.errors:
         print(f"nav {args.command}: skipped {_where(sf.errors)}", file=sys.stderr)
     for warning in sf.warnings:
-        print(f"nav {args.command}: {args.file}: warning: {warning}", file=sys.stderr)
+        print(f"nav {args.command}: {printable(args.file)}: warning: {warning}", file=sys.stderr)
     if not sf.rows:
         raise NavInputError("no valid sight left", field="file", example="utc,body,hs,dr_lat,dr_lon")
     return sf.rows
@@ -80,7 +80,7 @@ def _reduce(args, rows, use_ap=False):
         if not errors:
             raise
     for line in summarise_errors(errors):
-        print(f"nav {args.command}: {args.file}: {line}", file=sys.stderr)
+        print(f"nav {args.command}: {printable(args.file)}: {line}", file=sys.stderr)
     if not args.skip_bad_rows:
         raise _Reported(f"{len(errors)} problem(s) in {args.file}; nothing was computed "
                         "(mend them, or use --skip-bad-rows)", field="file")
@@ -145,7 +145,7 @@ def run_fix(args) -> int:
                                keep_doubtful=args.use_doubtful)
     except DoubtfulSightsError as err:
         for note in err.notes:
-            print(f"nav fix: {args.file}: {note}", file=sys.stderr)
+            print(f"nav fix: {printable(args.file)}: {note}", file=sys.stderr)
         raise _Reported(err.reason + "; --use-doubtful computes the fix with them",
                         field=err.field) from None
     fix = result.fix
