@@ -290,3 +290,15 @@ def test_temperature_and_pressure_have_bounds_and_extremes_warn(tmp_path, capsys
             assert code == 2 and "outside" in err, (t, p, err)
         else:
             assert code == 0 and "extreme" in out, (t, p, out)
+
+
+def test_the_shell_warns_of_extreme_weather_and_refuses_a_unit_slip(tmp_path):
+    from tests.shell_driver import open_state, run_lines
+
+    clock = lambda: datetime(2026, 6, 20, 14, 0, tzinfo=timezone.utc)  # noqa: E731
+    st_, log = open_state(tmp_path / "p.jsonl", "Sula Brae", "t", clock)
+    try:
+        out = run_lines(st_, "set pressure 29.92", "set temp 75", "set pressure 905")
+        assert out.count("error") == 2 and "inHg" in out and "extreme" in out
+    finally:
+        log.close()

@@ -65,6 +65,11 @@ def run_set(st, req) -> None:
         return
     e = st.append(req.entry)
     st.say(f"logged {e.id}: setting {setting_summary(e.data)}")
+    if "temperature_c" in e.data or "pressure_hpa" in e.data:
+        from ..fields import weather_warnings
+
+        s = st.settings
+        st.say(*(f"  ! {w}" for w in weather_warnings(s.temperature_c, s.pressure_hpa)))
 
 
 # ---------------------------------------------------------------- dr, course, speed
