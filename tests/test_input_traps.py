@@ -302,3 +302,35 @@ def test_the_shell_warns_of_extreme_weather_and_refuses_a_unit_slip(tmp_path):
         assert out.count("error") == 2 and "inHg" in out and "extreme" in out
     finally:
         log.close()
+
+
+_NOTE_TEXT = st.text(alphabet=st.sampled_from(list("ab ,\"'\n\r;°′é✓")), max_size=40)
+
+
+@given(st.lists(_NOTE_TEXT, min_size=1, max_size=4), st.sampled_from(["\n", "\r\n", "\r"]))
+@settings(max_examples=60, deadline=None)
+def test_notes_round_trip_through_a_csv_writer_with_editor_line_numbers(notes, ending):
+    # A file written by Python's csv module (the reference writer) reads back with every note
+    # whole, and each row named by the line an editor shows it on (line ends of any kind).
+    import csv
+    import io
+
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator=ending, quoting=csv.QUOTE_ALL)
+    w.writerow(["utc", "body", "hs", "dr_lat", "dr_lon", "note"])
+    for i, note in enumerate(notes):
+        w.writerow([f"2026-06-20T21:{10 + i:02d}:00Z", "Vega", "32 12.4", "35 10.1 N",
+                    "021 33.9 W", note])
+    text = buf.getvalue()
+    sf = parse_sight_csv(text)
+    # an editor counts CR LF, CR and LF each as one line end
+    norm = text.replace("\r\n", "\n").replace("\r", "\n")
+    expected, line = [], 2
+    for note in notes:
+        expected.append(line)
+        line += note.replace("\r\n", "\n").replace("\r", "\n").count("\n") + 1
+    assert [r.line for r in sf.rows] == expected
+    # kept whole: only the blanks around a cell are trimmed, as for every cell
+    assert [r.note for r in sf.rows] == [n.replace("\r\n", "\n").replace("\r", "\n").strip()
+                                         for n in notes]
+    assert norm.count("\n") == line - 1
