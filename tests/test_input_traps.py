@@ -132,11 +132,13 @@ def test_duplicate_rows_are_warned_about(tmp_path, capsys):
     assert "lines 4, 5" in w and "Spica" in w and "count 2 times" in w
     path = tmp_path / "d.csv"
     path.write_text(text, encoding="utf-8")
-    for argv in (["fix", str(path)], ["reduce", str(path)],
-                 ["import", str(path), "--log", str(tmp_path / "l.jsonl"), "--new", "--vessel",
-                  "Sula Brae", "--title", "t"]):
+    for argv in (["fix", str(path)], ["reduce", str(path)]):
         code, _, err = _run(capsys, *argv)
         assert code == 0 and "same sight" in err, argv
+    # a passage log takes one observation once: import refuses the repeat (issue 7 item 3)
+    code, _, err = _run(capsys, "import", str(path), "--log", str(tmp_path / "l.jsonl"), "--new",
+                        "--vessel", "Sula Brae", "--title", "t")
+    assert code == 2 and "same sight" in err and "line 5 repeats" in err
 
 
 @pytest.mark.parametrize("mangle", [
