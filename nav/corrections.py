@@ -63,7 +63,8 @@ import numpy as np
 from .almanac import EARTH_EQUATORIAL_RADIUS_KM, MOON_RADIUS_KM
 from .angles import asind, atan2d, cosd, format_dm, sind
 from .errors import NavInputError
-from .fields import parse_horizon, parse_limb
+from .fields import (PRESSURE_USUAL_HPA, TEMPERATURE_USUAL_C, parse_horizon, parse_limb,
+                     weather_warnings)
 
 # ---------------------------------------------------------------- constants (named, with sources)
 
@@ -376,6 +377,13 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
         _refuse_where((sd < 0) | (sd > 20.0), lambda i: f"SD {sd.ravel()[i]:g}′ is impossible",
                       "sd_arcmin", "16.1 (arcmin)", scalar)
 
+    # the reading: above 90° only an artificial horizon's double altitude (checked before halving)
+    art = hor == "artificial"
+    _refuse_where(~art & (hs > 90.0) | art & (hs > 180.0),
+                  lambda i: f"Hs {hs.ravel()[i]:g}° is above "
+                            f"{180 if art.ravel()[i] else 90}°" + ("" if art.ravel()[i] else
+                            ": only an artificial-horizon reading (the double altitude) can be"),
+                  "hs", "34 12.3, or 112 24.6 with an artificial horizon", scalar)
     # 1-2: index, horizon -> Ha
     index = -ie
     sea = hor == "sea"
@@ -401,7 +409,7 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
     parallax = np.where(with_parallax, (h_geo - h_c) * 60.0, 0.0)
     ho = h_c + parallax / 60.0
 
-    warnings = _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat)
+    warnings = _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat, t, p)
     return AltitudeCorrection(
         body_kind=kind, limb=limbs[()] if scalar else limbs, horizon=hor[()] if scalar else hor,
         hs_deg=_out(hs), index_arcmin=_out(index), dip_arcmin=_out(dip), ha_deg=_out(ha),
@@ -410,21 +418,21 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
         ho_deg=_out(ho), warnings=warnings[0] if scalar else tuple(warnings))
 
 
-def _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat) -> list[tuple[str, ...]]:
+def _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat, t, p) -> list[tuple[str, ...]]:
     """One tuple of messages per element (C order); messages are built only where flagged."""
     n = int(np.prod(shape))
-    ha, ie, eye, sea = (np.broadcast_to(v, shape).ravel() for v in (ha, ie, eye, sea))
+    ha, ie, eye, sea, t, p = (np.broadcast_to(v, shape).ravel() for v in (ha, ie, eye, sea, t, p))
     low = ha < LOW_ALTITUDE_DEG
     big_ie = np.abs(ie) > LARGE_INDEX_ERROR_ARCMIN
     no_dip = sea & (eye == 0.0)
-    common = []
-    if kind == "planet" and hp_arcmin is None:
-        common.append("no HP given for the planet: parallax not applied (up to 0.5′ for Venus)")
-    if kind == "moon" and lat is None:
-        common.append("Moon's parallax computed for a spherical Earth (no latitude given): "
-                      "up to 0.2′ off")
-    out: list[tuple[str, ...]] = [tuple(common)] * n
-    for i in np.flatnonzero(low | big_ie | no_dip):
+    odd_weather = ((t < TEMPERATURE_USUAL_C[0]) | (t > TEMPERATURE_USUAL_C[1])
+                   | (p < PRESSURE_USUAL_HPA[0]) | (p > PRESSURE_USUAL_HPA[1]))
+    no_hp = ("no HP given for the planet: parallax not applied (up to 0.5′ for Venus)"
+             if kind == "planet" and hp_arcmin is None else None)
+    sphere = ("Moon's parallax computed for a spherical Earth (no latitude given): up to 0.2′ off"
+              if kind == "moon" and lat is None else None)
+    out: list[tuple[str, ...]] = [tuple(m for m in (no_hp, sphere) if m)] * n
+    for i in np.flatnonzero(low | big_ie | no_dip | odd_weather):
         msgs = []
         if low[i]:
             msgs.append(f"low altitude: Ha {format_dm(ha[i])} is below 5°, where refraction is "
@@ -435,5 +443,10 @@ def _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat) -> list[tuple[str, 
         if no_dip[i]:
             msgs.append("height of eye is 0 m, so no dip was applied: give the height of eye "
                         "for a sea-horizon sight")
-        out[i] = tuple(msgs + common)
+        if no_hp:
+            msgs.append(no_hp)
+        msgs.extend(weather_warnings(float(t[i]), float(p[i])))
+        if sphere:
+            msgs.append(sphere)
+        out[i] = tuple(msgs)
     return out
