@@ -7,7 +7,9 @@ import sys
 
 from .. import CAUTION
 from ..errors import NavInputError, printable
-from ..sightfile import summarise_errors
+
+# nav.sightfile (numpy, through the shared parsers) is imported inside the commands, so that
+# registering them imports nothing heavy (tests/test_offline.py checks it).
 
 SKIP_HELP = "compute from the valid rows and list the bad ones (default: refuse a partly bad file)"
 
@@ -55,7 +57,7 @@ def _where(errors) -> str:
 
 
 def _load(args):
-    from ..sightfile import read_sight_file
+    from ..sightfile import read_sight_file, summarise_errors
 
     sf = read_sight_file(args.file, skip_bad_rows=args.skip_bad_rows)
     for line in summarise_errors(sf.errors):
@@ -74,6 +76,7 @@ def _load(args):
 
 def _reduce(args, rows, use_ap=False):
     """Reduce the rows; a sight the chain refuses is reported (all of them) like a bad cell."""
+    from ..sightfile import summarise_errors
     from ..workflow import reduce_rows, refused_rows
 
     try:
