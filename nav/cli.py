@@ -19,6 +19,7 @@ COMMAND_MODULES = (
     "nav.commands.sights_cmd",
     "nav.commands.passage_cmd",
     "nav.commands.noon_cmd",
+    "nav.commands.marking_cmd",
     "nav.commands.shell_cmd",
 )
 

@@ -240,7 +240,7 @@ def _figure(name: str, step: str, s: dict, ref: dict, exact: dict, row, kind: st
         return None                      # not a figure of this sight (v of the Sun, SHA of the Moon)
     if name == "utc_time":
         status, diff = _utc_status(s, ref)
-        return Figure(name, step, status, mine, expected, diff)
+        return Figure(name, step, status, utc_of(s), ref["_utc"], diff)
     if name == "utc_date":
         return None                      # judged with utc_time as one instant
     if mine is None:
