@@ -169,13 +169,24 @@ def run_exercise(args) -> int:
     return 0
 
 
+def _named(text: str, field: str) -> float:
+    """Latitude or Dec with its name (N/S) or a sign: a bare number is a likely slip."""
+    from ..angles import parse_lat
+
+    s = str(text).strip()
+    if not (s[-1:].upper() in ("N", "S") or s[:1].upper() in ("N", "S") or s[:1] in "+-\u2212"):
+        raise NavInputError(f"'{text}' has no name: add N or S", field=field,
+                            example="26 S or 41 12.4 N")
+    return parse_lat(s, field)
+
+
 def run_triangle(args) -> int:
-    from ..angles import parse_altitude, parse_angle, parse_lat
+    from ..angles import parse_altitude, parse_angle
     from ..marking.worksheet import triangle_dict, triangle_lines
     from ..marking.triangle import solve
 
-    lat = parse_lat(args.lat, "lat")
-    dec = parse_lat(args.dec, "dec")
+    lat = _named(args.lat, "lat")
+    dec = _named(args.dec, "dec")
     lha = parse_angle(args.lha, "lha", min_deg=0.0, max_deg=360.0)
     ho = parse_altitude(args.ho, "ho") if args.ho else None
     tri = solve(lat, dec, lha, ho)
