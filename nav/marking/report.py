@@ -89,6 +89,14 @@ def _figure_text(f: Figure) -> str:
 def student_lines(st: StudentMarks) -> list[str]:
     lines = [f"{st.student}: {st.verdict}"]
     for m in st.sights:
+        marked = [f for f in m.figures if f.status != "right"]
+        if not marked:
+            lines.append(f"  sight {m.sight} ({m.body}): every figure right")
+            continue
+        if not m.slips:
+            lines.append(f"  sight {m.sight} ({m.body}): no wrong figure; "
+                         + "; ".join(_figure_text(f) for f in marked))
+            continue
         lines.append(f"  sight {m.sight} ({m.body})")
         for chain in CHAINS:
             step = m.first_wrong.get(chain)
@@ -100,9 +108,7 @@ def student_lines(st: StudentMarks) -> list[str]:
             for later in (s for s in m.slips if s.chain == chain and s.step != step):
                 lines.append(f"    {'':<10} also at {later.step}; {later.code}: {later.sentence}")
         lines.append(f"    {_effect_text(m.lop_effect_nmi)}")
-        marked = [f for f in m.figures if f.status != "right"]
-        if marked:
-            lines.append("    " + "; ".join(_figure_text(f) for f in marked))
+        lines.append("    " + "; ".join(_figure_text(f) for f in marked))
     for f in st.fixes:
         own = "" if f.off_own_nmi is None else f"{f.off_own_nmi:.1f} nmi from own lines, "
         ref = "" if f.off_reference_nmi is None else f"{f.off_reference_nmi:.1f} nmi from the reference"
