@@ -86,6 +86,15 @@ def worksheet_lines(fig: dict, *, title: str | None = None) -> list[str]:
     return out
 
 
+def row_worksheet_lines(row) -> list[str]:
+    """A :class:`nav.sightfile.SightRow` worked the tables' way, in paper order (the shell's
+    ``show`` of a sight and ``nav reduce --worksheet``)."""
+    from .reference import work_sheet
+
+    fig = work_sheet(row, method=row.method or "ap")
+    return worksheet_lines(fig, title="  worked the tables' way, in paper order:")
+
+
 def triangle_lines(tri) -> list[str]:
     """`nav triangle` on screen."""
     out = [f"Lat {format_lat(tri.lat_deg)}  Dec {format_lat(tri.dec_deg)}  LHA {_a(tri.lha_deg)}",
