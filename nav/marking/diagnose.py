@@ -265,7 +265,7 @@ def _figure(name: str, step: str, s: dict, ref: dict, exact: dict, row, kind: st
 def _signature(step: str, s: dict, ref: dict, row, kind: str) -> str:
     """The slip code whose signature the wrong step shows."""
     g = s.get
-    if step == "utc":
+    if step == "utc" and _utc_seconds(s) is not None:
         mine = _utc_seconds(s)
         t = ref["_utc"].timestamp()
         if row.zone_h is not None and abs(mine - (t - row.zone_h * 3600)) <= TIME_TOLERANCE_S:
