@@ -59,3 +59,21 @@ def test_shell_show_of_a_sight_includes_the_paper_order(tmp_path):
         assert "intercept" in out.split("paper order")[1]
     finally:
         log.close()
+
+
+def test_shell_triangle_against_geographiclib(tmp_path):
+    from geographiclib.geodesic import Geodesic
+
+    clock = lambda: datetime(2026, 6, 14, 23, 30, tzinfo=timezone.utc)  # noqa: E731
+    st, log = open_state(tmp_path / "skua.jsonl", "Skua (invented)", "Triangle test", clock)
+    try:
+        out = run_lines(st, "triangle lat 26 S dec 12 03.4 S lha 315 ho 44 12.3")
+        # geographiclib on a sphere: Hc = 90° − the arc from the AP to the GP (Karney 2013)
+        inv = Geodesic(1.0, 0.0).Inverse(-26.0, 0.0, -(12 + 3.4 / 60), -315.0)
+        hc = 90.0 - inv["a12"]
+        assert f"{int(hc)}°{(hc - int(hc)) * 60:04.1f}′" in out
+        assert f"Zn        {inv['azi1'] % 360:05.1f}°" in out and " nmi A" in out
+        out = run_lines(st, "triangle lat 26 dec 12 S lha 315")
+        assert "error" in out and "lat" in out and len(log.entries) == 1    # nothing logged
+    finally:
+        log.close()
