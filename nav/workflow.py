@@ -83,8 +83,15 @@ def apply_row_choices(red: SightReductions, rows: Sequence[SightRow], *,
     pick = {f: np.where(ap, getattr(by_ap, f), getattr(by_dr, f))
             for f in ("gha_deg", "dec_deg", "lat_deg", "lon_deg", "lha_deg", "hc_deg", "zn_deg",
                       "intercept_nmi")}
-    warnings = tuple(tuple(w) + ((PRESCRIBED_NOTE,) if p else ())
-                     for w, p in zip(red.warnings, prescribed))
+    from .reduction import reduction_warnings
+
+    warnings = []
+    for w, p, ho, before, after in zip(red.warnings, prescribed, np.atleast_1d(red.ho_deg),
+                                       np.atleast_1d(red.intercept_nmi), pick["intercept_nmi"]):
+        stale = set(reduction_warnings(ho, before))      # they judged the replaced reduction
+        warnings.append(tuple(x for x in w if x not in stale) + reduction_warnings(ho, after)
+                        + ((PRESCRIBED_NOTE,) if p else ()))
+    warnings = tuple(warnings)
     return replace(red, **pick, from_ap=bool(np.all(ap)), warnings=warnings)
 
 

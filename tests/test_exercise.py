@@ -89,5 +89,10 @@ def test_exercise_command_writes_its_files_and_refuses_unknown_codes(tmp_path, c
     rows = list(csv.DictReader(io.StringIO((out / "exercise.csv").read_text())))
     assert {r["zone"] for r in rows} == {"+10"}
     assert {r["watch_error"] for r in rows} == {"1 min 5 s fast"}
+    # the key's fix from its own lines, in the fixes contract, marks right against the key
+    assert (out / "key_fixes.csv").read_text().startswith("student,exercise,fix,zt,sights,lat,lon")
+    assert main(["mark", str(out / "exercise.csv"), str(out / "key_tables.csv"), "--fixes",
+                 str(out / "key_fixes.csv")]) == 0
+    assert "fix 1 (sights 1 2): right" in capsys.readouterr().out
     assert main(["exercise", "--seed", "2", "--mistakes", "ie_sing", "--out", str(out)]) == 2
     assert "ie_sing" in capsys.readouterr().err

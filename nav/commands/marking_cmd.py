@@ -156,6 +156,7 @@ def run_exercise(args) -> int:
              "key_exact.csv": sheets_csv(exact), "truth.csv": truth_csv(ex)}
     if planted:
         files["planted.csv"] = sheets_csv(planted)
+    files["key_fixes.csv"] = _key_fixes(rows, name)
     for fname, body in files.items():
         _write(os.path.join(args.out, fname), body)
     print(f"exercise {name}: {len(rows)} sight(s) "
@@ -167,6 +168,23 @@ def run_exercise(args) -> int:
     print()
     print(CAUTION)
     return 0
+
+
+def _key_fixes(rows, name: str) -> str:
+    """The key's fix (or running fix) from its own lines at the last sight, in the fixes contract."""
+    from ..marking.fixes import reference_fix
+    from ..marking.reference import work_sheet
+    from ..marking.sheet import FIX_COLUMNS, format_cell
+
+    ids = [r.sight_id for r in rows]
+    line = ""
+    if len(ids) >= 2:
+        lat, lon = reference_fix(ids, {r.sight_id: r for r in rows},
+                                 {r.sight_id: work_sheet(r) for r in rows})
+        line = ",".join(["key (tables)", name, "1", "", " ".join(ids),
+                         format_cell("lat", lat), format_cell("lon", lon),
+                         "at the last sight's time"]) + "\n"
+    return ",".join(FIX_COLUMNS) + "\n" + line
 
 
 def _named(text: str, field: str) -> float:

@@ -91,8 +91,11 @@ def _setting_notes(row) -> dict:
 
 def run_reduce(args) -> int:
     from ..render import reduction_dict, reduction_lines, sight_title
+    if getattr(args, "worksheet", False) and args.json:
+        raise NavInputError("--worksheet is text for reading; use --json alone for data",
+                            field="worksheet", example="nav reduce --worksheet sights.csv")
     rows, red = _reduce(args, _load(args), use_ap=args.ap)
-    if getattr(args, "worksheet", False) and not args.json:
+    if getattr(args, "worksheet", False):
         from ..marking.reference import work_sheet
         from ..marking.worksheet import worksheet_lines
 
