@@ -213,3 +213,13 @@ def test_a_bad_sheet_is_refused_with_its_row_and_field(tmp_path, capsys):
     unknown = _write(tmp_path / "unknown.csv", "student,sight,hcc\nAna,1,34 01.0\n")
     assert main(["mark", str(out / "exercise.csv"), unknown]) == 2
     assert "hcc" in capsys.readouterr().err
+
+
+def test_a_sheet_worked_from_the_dr_is_marked_against_the_dr(exercises):
+    rows = exercises["sun-run"]
+    fig = work_sheet(rows[0], method="dr") | {"student": "Mei"}
+    # method dr: a-Lat and a-Lon are the DR's own (common practice, no source)
+    from dataclasses import replace
+    row = replace(rows[0], method="dr")
+    m = mark_sight(_through_csv([fig])[0], row)
+    assert not m.slips, [(f.name, f.status, f.difference) for f in m.figures if f.status != "right"]
