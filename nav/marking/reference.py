@@ -15,8 +15,8 @@ from ..angles import norm180, norm360
 from ..errors import NavInputError
 from ..timekeeping import UTC
 from .sheet import split_utc
-from .tables import INCREMENT_DEG_PER_H, tabulate, tenth_arcmin, tenth_deg, work_altitude
-from .triangle import pole_of, side_of, solve, zn_from_z
+from .tables import tabulate, tenth_arcmin, tenth_deg, work_altitude
+from .triangle import solve, zn_from_z
 
 SLIPS = {
     "ie_sign": "index correction applied with the wrong sign",
@@ -183,7 +183,3 @@ def work_sheet(row, *, tables: bool = True, slips=frozenset(), method: str | Non
     fig["_kind"], fig["_utc"], fig["_signed_intercept_nmi"] = kind, utc, signed
     fig["_rule"] = f"{pole} lat, LHA {'over' if side == 'E' else 'under'} 180°: " + tri.rule
     return fig
-
-
-def increment_rate_deg_per_h(kind: str) -> float:
-    return INCREMENT_DEG_PER_H[kind]

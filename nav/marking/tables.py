@@ -125,11 +125,6 @@ def tabulate(body: str, utc: datetime) -> TabulatedSight:
                           float(norm360(gha)), dec_hour, d, d_corr, dec, hp, sd)
 
 
-def dec_toward(dec_deg: float) -> float:
-    """+1 for a north Dec (and 0), −1 for south: d signed by |Dec| increasing turns north by this."""
-    return 1.0 if dec_deg >= 0 else -1.0
-
-
 # ---------------------------------------------------------------- altitude corrections
 
 @dataclass(frozen=True)
