@@ -18,6 +18,7 @@ COMMAND_MODULES = (
     "nav.commands.almanac_cmd",
     "nav.commands.sights_cmd",
     "nav.commands.passage_cmd",
+    "nav.commands.review_cmd",
     "nav.commands.noon_cmd",
     "nav.commands.sky_cmd",
     "nav.commands.meridian_cmd",

@@ -205,7 +205,8 @@ def run_plot(st, req) -> None:
         kind = result.fix.kind
         plot_fix_sheet(result.fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
                        title=f"{st.vessel}: {kind} {result.fix.utc:%Y-%m-%d %H:%M} UTC ({fid})",
-                       path=out)
+                       path=out, replace=req.args.get("replace", False),
+                       replace_hint=SHELL_REPLACE_HINT)
         _, moved = rhumb_line(fx["lat_deg"], fx["lon_deg"], result.fix.lat_deg,
                               result.fix.lon_deg)
         if float(moved) > 0.05:
@@ -219,20 +220,21 @@ def run_plot(st, req) -> None:
              for t, lat, lon, b in st.passage.track_points()]
     fixes, _ = points_from_log(st.log)
     out = Path(path) if path else _next_to_log(st, "-passage.png")
-    plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out)
+    plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out,
+                 replace=req.args.get("replace", False), replace_hint=SHELL_REPLACE_HINT)
     st.say(f"passage plot written to {out}")
 
 
-def _write_new(path: Path, text: str) -> None:
-    try:
-        with open(path, "x", encoding="utf-8", newline="") as f:
-            f.write(text)
-    except FileExistsError:
-        raise NavInputError(f"{path} already exists; an export never overwrites a file",
-                            field="file", example=f"export ... {path.stem}-2{path.suffix}") from None
-    except OSError as err:
-        raise NavInputError(f"{path} cannot be written ({err.strerror})", field="file",
-                            example="a file in a folder you can write to") from None
+SHELL_REPLACE_HINT = "the word replace at the end"
+
+
+def _write_new(st, path: Path, text: str, replace: bool) -> None:
+    """The file rules of nav.files, shared with the CLI (its --replace is our word replace)."""
+    from ..files import write_output
+
+    write_output(path, text, replace=replace, field="file",
+                 example=f"export ... {path.stem}-2{path.suffix}",
+                 replace_hint=SHELL_REPLACE_HINT, protect=[st.log.path])
 
 
 def run_export(st, req) -> None:
@@ -252,7 +254,7 @@ def run_export(st, req) -> None:
         rows = ex.sight_rows(st.log)
         text = ex.sights_to_csv(rows, ex.SIGHT_CSV_COLUMNS)
         what = f"{len(rows)} sight(s)"
-    _write_new(path, text)
+    _write_new(st, path, text, req.args.get("replace", False))
     st.say(f"exported {what} as {fmt.upper() if fmt != 'geojson' else 'GeoJSON'} to {path}")
 
 
