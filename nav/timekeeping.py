@@ -73,7 +73,7 @@ def format_utc(t: datetime) -> str:
 def format_hms(t: datetime) -> str:
     """Time of day for a human surface: ``18:42:10 UTC``."""
     t = t.astimezone(UTC) + timedelta(microseconds=500_000)
-    return t.strftime("%H:%M:%S") + " UTC"
+    return f"{t.hour:02d}:{t.minute:02d}:{t.second:02d} UTC"
 
 
 def format_hm(t: datetime) -> str:
