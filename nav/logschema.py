@@ -87,6 +87,21 @@ SCHEMA: dict[str, dict[str, Field]] = {
             "ellipse_confidence": Field("num", lo=0, hi=1),
             "warnings": Field("texts"), "note": _NOTE},
     "note": {"text": Field("note", True, max_len=MAX_NOTE), "utc": Field("utc")},
+    # A compass check (issue 9): a body's true bearing against the compass, with the ship's
+    # head by that compass, so the deviation can be listed per heading over the passage.
+    "compass_check": {"utc": Field("utc", True), "time_text": Field("text"),
+                      "body": Field("text", True, max_len=40),
+                      "method": Field("enum", True, choices=("azimuth", "amplitude")),
+                      "horizon": Field("enum", choices=("celestial", "visible")),
+                      "compass_bearing_deg": Field("num", True, 0, 360, hi_open=True),
+                      "heading_deg": Field("num", True, 0, 360, hi_open=True),
+                      "zn_deg": Field("num", True, 0, 360, hi_open=True),
+                      "compass_error_deg": Field("num", True, -180, 180),
+                      "variation_deg": Field("num", lo=-180, hi=180),
+                      "deviation_deg": Field("num", lo=-180, hi=180),
+                      "lat_deg": Field("num", True, -90, 90),
+                      "lon_deg": Field("num", True, -180, 180), "note": _NOTE},
+
     "strike": {"target": Field("id", True), "reason": Field("text", True, max_len=500)},
     "correct": {"target": Field("id", True), "reason": Field("text", True, max_len=500),
                 "replacement": Field("object", True)},
