@@ -18,6 +18,13 @@ from ..errors import NavInputError
 _FIGURE = {}                # per process: the one figure that its plots are drawn on
 
 
+def _warm():
+    """Import what drawing needs (in a worker, while the caller computes its first plots)."""
+    from matplotlib.backends import backend_agg  # noqa: F401
+
+    from .. import plotting  # noqa: F401
+
+
 def _draw(name: str, args: tuple, kwargs: dict):
     """Draw one plot on this process' figure; an input error comes back as its fields."""
     from .. import plotting
@@ -34,10 +41,9 @@ class SheetPool:
         self._pool = None
         self._pending = []
         if workers > 1 and "fork" in multiprocessing.get_all_start_methods():
-            import matplotlib.figure  # noqa: F401  (imported once, before the fork)
-            from .. import plotting  # noqa: F401
-
             self._pool = ProcessPoolExecutor(workers, mp_context=multiprocessing.get_context("fork"))
+            for _ in range(workers):        # start the workers now: they import matplotlib
+                self._pending.append(self._pool.submit(_warm))     # while the caller computes
 
     def draw(self, name: str, *args, **kwargs) -> None:
         if self._pool is None:
