@@ -18,6 +18,7 @@ COMMAND_MODULES = (
     "nav.commands.almanac_cmd",
     "nav.commands.sights_cmd",
     "nav.commands.passage_cmd",
+    "nav.commands.review_cmd",
     "nav.commands.noon_cmd",
     "nav.commands.sky_cmd",
     "nav.commands.meridian_cmd",
@@ -42,8 +43,9 @@ class _Parser(argparse.ArgumentParser):
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="nav",
-        description="Celestial-navigation sight-reduction workbench. A cross-check and teaching "
-                    "aid: it backs up, and never replaces, approved navigation.",
+        description="Celestial-navigation sight-reduction workbench: a cross-check that backs "
+                    "up, and never replaces, approved navigation practice, charts and "
+                    "instruments. The skipper stays responsible.",
     )
     from . import __version__
 

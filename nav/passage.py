@@ -25,7 +25,7 @@ from typing import Sequence
 from .errors import NavInputError
 from .sailing import dr_position, rhumb_line
 from .sightfile import SightRow
-from .timekeeping import UTC, parse_utc
+from .timekeeping import UTC, format_date_hm, format_date_hms, parse_utc
 
 DEFAULTS = {"eye_height_m": 0.0, "index_error_arcmin": 0.0, "watch_error_s": 0.0,
             "zone_description_h": 0.0, "temperature_c": 10.0, "pressure_hpa": 1010.0,
@@ -83,9 +83,9 @@ class Whereabouts:
     def describe(self) -> str:
         hours = self.age.total_seconds() / 3600.0
         if self.basis in ("fix", "running fix"):
-            what = f"{self.basis} at {self.anchor.utc:%Y-%m-%d %H:%M} UTC"
+            what = f"{self.basis} at {format_date_hm(self.anchor.utc)} UTC"
         else:
-            what = f"{self.basis.upper()} position entered at {self.anchor.utc:%Y-%m-%d %H:%M} UTC"
+            what = f"{self.basis.upper()} position entered at {format_date_hm(self.anchor.utc)} UTC"
         if hours < 1 / 60:
             return what
         return f"DR {hours:.1f} h from the {what}"
@@ -166,7 +166,7 @@ class Passage:
         i = bisect.bisect_right(self._anchor_times, utc) - 1
         if i < 0:
             raise NavInputError(
-                f"no position is known at or before {utc:%Y-%m-%d %H:%M:%S} UTC: enter a DR first",
+                f"no position is known at or before {format_date_hms(utc)} UTC: enter a DR first",
                 field="dr", example="dr 41 12.5 N 032 07.1 W course 245 speed 6.5")
         a = self.anchors[i]
         lat, lon = self._sail(a.lat_deg, a.lon_deg, a.utc, utc)

@@ -11,7 +11,7 @@ import numpy as np
 
 from . import CAUTION
 from .angles import format_arcmin, format_dm, format_lat, format_lon
-from .timekeeping import from_datetime64
+from .timekeeping import format_date_hms, format_utc, from_datetime64, round_to_second
 
 LIMB_WORD = {"lower": "lower limb", "upper": "upper limb", "center": "centre"}
 
@@ -32,7 +32,7 @@ def sight_title(s, number: int | None = None, row: int | None = None) -> str:
     head = f"Sight {number}" if number is not None else "Sight"
     if row is not None and row != number:
         head += f" (row {row})"
-    return f"{head}: {s.body}{limb}, {t:%Y-%m-%d %H:%M:%S} UTC"
+    return f"{head}: {s.body}{limb}, {format_date_hms(t)} UTC"
 
 
 def reduction_lines(s, *, eye_height_m=None, index_error_arcmin=None, temperature_c=None,
@@ -78,7 +78,7 @@ def reduction_lines(s, *, eye_height_m=None, index_error_arcmin=None, temperatur
 def reduction_dict(s, row: int | None = None) -> dict:
     """One reduced sight for JSON (decimal degrees, unit suffixes)."""
     t = from_datetime64(s.utc) if isinstance(s.utc, np.datetime64) else s.utc
-    d = {"row": row, "body": s.body, "utc": f"{t:%Y-%m-%dT%H:%M:%S}Z", "limb": s.limb,
+    d = {"row": row, "body": s.body, "utc": format_utc(t), "limb": s.limb,
          "horizon": s.horizon}
     for k in ("hs_deg", "index_arcmin", "dip_arcmin", "ha_deg", "refraction_arcmin", "sd_arcmin",
               "augmentation_arcmin", "parallax_arcmin", "ho_deg", "gha_deg", "dec_deg", "hp_arcmin",
@@ -99,7 +99,7 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
 
     e = fix.ellipse
     kind = "Running fix" if fix.kind == "running fix" else "Fix"
-    out = [f"{kind} at {fix.utc:%Y-%m-%d %H:%M:%S} UTC from {fix.n_sights} sights",
+    out = [f"{kind} at {format_date_hms(fix.utc)} UTC from {fix.n_sights} sights",
            f"  position     {format_lat(fix.lat_deg)}  {format_lon(fix.lon_deg)}",
            f"  ellipse      {e.confidence * 100:g}%: {e.semi_major_nmi:.1f} \u00d7 {e.semi_minor_nmi:.1f} nmi"
            f" (semi-axes), major axis {e.orientation_deg:05.1f}\u00b0/{(e.orientation_deg + 180) % 360:05.1f}\u00b0"
@@ -123,7 +123,7 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
 def fix_dict(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> dict:
     e = fix.ellipse
     return {
-        "utc": f"{fix.utc:%Y-%m-%dT%H:%M:%S}Z", "lat_deg": round(fix.lat_deg, 7),
+        "utc": format_utc(fix.utc), "lat_deg": round(fix.lat_deg, 7),
         "lon_deg": round(fix.lon_deg, 7), "kind": fix.kind,
         "ellipse": {"semi_major_nmi": round(e.semi_major_nmi, 4),
                     "semi_minor_nmi": round(e.semi_minor_nmi, 4),
@@ -194,10 +194,8 @@ MINUS = "\u2212"
 
 
 def _second(t):
-    """An instant (aware or naive) rounded to the whole second, for HH:MM:SS."""
-    from datetime import timedelta
-
-    return (t + timedelta(microseconds=500_000)).replace(microsecond=0)
+    """An instant (aware or naive) rounded to the whole second, for HH:MM:SS (the one rule)."""
+    return round_to_second(t)
 
 
 def _clock(hours: float) -> str:
@@ -404,7 +402,7 @@ def meridian_latitude_dict(w) -> dict:
         return None if x is None else round(float(x), k)
 
     return {
-        "method": w.method, "body": w.body, "utc": f"{w.utc:%Y-%m-%dT%H:%M:%S}Z",
+        "method": w.method, "body": w.body, "utc": format_utc(w.utc),
         "lat_deg": r(w.lat_deg), "ho_deg": r(w.ho_deg), "gha_deg": _r360(w.gha_deg),
         "dec_deg": r(w.dec_deg), "lha_deg": _r360(w.lha_deg), "dr_lat_deg": r(w.dr_lat_deg),
         "dr_lon_deg": r(w.dr_lon_deg), "bearing": w.bearing,

@@ -64,22 +64,42 @@ def parse_utc(text: str, field: str = "utc") -> datetime:
     return (local - offset).replace(tzinfo=UTC)
 
 
+def round_to_second(t: datetime) -> datetime:
+    """The one rounding rule of a time shown anywhere (screens, files, sheets): to the nearest
+    whole second, half a second up (common practice, no source); the time keeps its zone. A
+    label to the minute rounds this second again, half a minute up, so a sheet never disagrees
+    with the seconds a screen shows for the same sight."""
+    return (t + timedelta(microseconds=500_000)).replace(microsecond=0)
+
+
+def _utc_second(t: datetime) -> datetime:
+    return round_to_second(t.astimezone(UTC) if t.tzinfo is not None else t)
+
+
 def format_utc(t: datetime) -> str:
     """ISO 8601 in UTC to the second (rounded), with ``Z``: ``2026-03-20T18:42:10Z``."""
-    t = t.astimezone(UTC) + timedelta(microseconds=500_000)
-    return t.strftime("%Y-%m-%dT%H:%M:%SZ")
+    return _utc_second(t).strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+def format_date_hms(t: datetime) -> str:
+    """Date and time of day for a human surface (rounded): ``2026-03-20 18:42:10``."""
+    return _utc_second(t).strftime("%Y-%m-%d %H:%M:%S")
 
 
 def format_hms(t: datetime) -> str:
     """Time of day for a human surface: ``18:42:10 UTC``."""
-    t = t.astimezone(UTC) + timedelta(microseconds=500_000)
+    t = _utc_second(t)
     return f"{t.hour:02d}:{t.minute:02d}:{t.second:02d} UTC"
 
 
 def format_hm(t: datetime) -> str:
-    """Time of day to the minute (rounded), for labels: ``18:42``."""
-    t = t.astimezone(UTC) + timedelta(seconds=30)
-    return t.strftime("%H:%M")
+    """Time of day to the minute (rounded from the second shown), for labels: ``18:42``."""
+    return (_utc_second(t) + timedelta(seconds=30)).strftime("%H:%M")
+
+
+def format_date_hm(t: datetime) -> str:
+    """Date and time to the minute (rounded from the second shown): ``2026-03-20 18:42``."""
+    return (_utc_second(t) + timedelta(seconds=30)).strftime("%Y-%m-%d %H:%M")
 
 
 _DURATION_RE = re.compile(r"^\s*(?P<v>\d+(?:\.\d*)?)\s*(?P<u>s|sec|m|min|h|hr|d|day|days)?\s*$", re.I)

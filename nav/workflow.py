@@ -17,7 +17,7 @@ from .fix import Fix, LOP, Sight, lops_at, solve_fix
 from .reduction import SightReductions, reduce_sights
 from .sailing import rhumb_line
 from .sightfile import SightRow
-from .timekeeping import to_datetime64
+from .timekeeping import format_hm, to_datetime64
 
 
 @dataclass(frozen=True)
@@ -129,7 +129,7 @@ def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
         sights.append(Sight(
             ho_deg=float(red.ho_deg[i]), gha_deg=float(red.gha_deg[i]), dec_deg=float(red.dec_deg[i]),
             utc=row.utc, body=row.body, sigma_arcmin=row.sigma_arcmin,
-            course_deg=course, speed_kn=speed, label=f"{row.body} {row.utc:%H:%M}"))
+            course_deg=course, speed_kn=speed, label=f"{row.body} {format_hm(row.utc)}"))
     fix = solve_fix(sights, last.dr_lat_deg, last.dr_lon_deg, fix_utc, confidence=confidence)
     lops = lops_at(sights, [r.dr_lat_deg for r in rows], [r.dr_lon_deg for r in rows], fix_utc)
     return FixResult(fix=fix, reductions=red, sights=tuple(sights), lops=lops,

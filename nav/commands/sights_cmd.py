@@ -32,6 +32,9 @@ def register(sub) -> None:
     f.add_argument("--confidence", type=float, default=0.95,
                    help="probability the error ellipse is meant to cover (default 0.95)")
     f.add_argument("--plot", metavar="FILE.png|FILE.pdf", help="also draw the plotting sheet")
+    f.add_argument("--replace", action="store_true",
+                   help="let --plot replace an existing file (without it, an existing file is "
+                        "refused)")
     f.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
     f.set_defaults(func=run_fix)
 
@@ -132,7 +135,8 @@ def run_fix(args) -> int:
         from ..plotting import plot_fix_sheet
 
         plot_fix_sheet(fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
-                       title=f"{fix.kind.capitalize()} from {args.file}", path=args.plot)
+                       title=f"{fix.kind.capitalize()} from {args.file}", path=args.plot,
+                       replace=args.replace)
     if args.json:
         sights = []
         for i, row in enumerate(rows):

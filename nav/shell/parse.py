@@ -14,7 +14,8 @@ from datetime import timedelta
 
 from ..errors import NavInputError
 from ..fields import check_limb, parse_body, parse_sight_utc
-from .times import TimeRead, now_time, parse_at, parse_time_options
+from .times import (TimeRead, now_time, parse_at, parse_time_options, parse_zt,
+                    passage_time)
 from .words import (CORRECTABLE, DR_WORDS, EXPORT_FORMATS, NUMERIC_START, OPTIONS,
                     PLOT_EXTENSIONS, SETTING_WORDS, SIGHT_WORDS, Token, option_fields,
                     body_fields, hs_fields, position_fields, split_words)
@@ -138,9 +139,21 @@ def parse_sight(args, line, ctx) -> Request:
 
 
 def parse_fix(args, line, ctx) -> Request:
+    if args and args[0].text.lower() == "from" and not args[0].quoted:
+        rest = line[args[0].end:].strip()
+        if not rest:
+            raise NavInputError("give the time of the first sight to take", field="from",
+                                example="fix from 08:30, or fix from zt 06:30")
+        words = rest.split(None, 1)
+        start = (parse_zt(words[1], ctx, "from") if words[0].lower() == "zt" and len(words) == 2
+                 else parse_at(rest, ctx, "from"))
+        return Request("fix", args={"ids": [], "from": start})
     ids = [_entry_id(a.text, ctx, "sights", kinds=("sight",)) for a in args]
-    if len(set(ids)) != len(ids):
-        raise NavInputError("a sight is named twice", field="sights", example="fix e0004 e0005")
+    twice = sorted({i for i in ids if ids.count(i) > 1})
+    if twice:
+        raise NavInputError(f"{' and '.join(twice)} {'is' if len(twice) == 1 else 'are'} named "
+                            "twice; one observation counts once in a fix", field="sights",
+                            example="fix e0004 e0005")
     for sid in ids:
         if ctx.lookup(sid) is None:
             raise NavInputError(f"{sid} is struck; it cannot go into a fix", field="sights",
@@ -151,7 +164,7 @@ def parse_fix(args, line, ctx) -> Request:
 def parse_where(args, line, ctx) -> Request:
     pos, opts = split_words(line, args, ("at", "zt"), command="where")
     _no_more(pos, "where", "where at 21:30:00")
-    return Request("where", time=parse_time_options(opts, ctx) or now_time(ctx))
+    return Request("where", time=parse_time_options(opts, ctx) or passage_time(ctx))
 
 
 def parse_almanac(args, line, ctx) -> Request:
@@ -261,8 +274,19 @@ def _file_word(tok: Token, extensions, fld: str, example: str) -> str:
     return name
 
 
+REPLACE_WORD = "replace"        # the shell's word for the CLI's --replace (see nav.files)
+
+
+def _replace_word(args: list[Token]) -> tuple[list[Token], bool]:
+    """A last word `replace` (not quoted) asks to replace an existing file."""
+    if args and not args[-1].quoted and args[-1].text.lower() == REPLACE_WORD:
+        return list(args[:-1]), True
+    return list(args), False
+
+
 def parse_plot(args, line, ctx) -> Request:
     example = "plot fix e0009 sheet.png, plot passage, or plot"
+    args, replace = _replace_word(args)
     words = [a.text.lower() for a in args]
     what, fix_id, path, rest = None, None, None, list(args)
     if words[:1] == ["passage"]:
@@ -274,11 +298,12 @@ def parse_plot(args, line, ctx) -> Request:
     if rest:
         path = _file_word(rest[0], PLOT_EXTENSIONS, "file", example)
         _no_more(rest[1:], "plot", example)
-    return Request("plot", args={"what": what, "id": fix_id, "path": path})
+    return Request("plot", args={"what": what, "id": fix_id, "path": path, "replace": replace})
 
 
 def parse_export(args, line, ctx) -> Request:
     example = "export gpx passage.gpx"
+    args, replace = _replace_word(args)
     if not args or args[0].text.lower() not in EXPORT_FORMATS:
         raise NavInputError("name the format: " + ", ".join(EXPORT_FORMATS), field="format",
                             example=example)
@@ -288,7 +313,7 @@ def parse_export(args, line, ctx) -> Request:
         path = _file_word(args[1], ("." + fmt, ".json") if fmt == "geojson" else ("." + fmt,),
                           "file", f"export {fmt} passage.{fmt}")
         _no_more(args[2:], "export", example)
-    return Request("export", args={"format": fmt, "path": path})
+    return Request("export", args={"format": fmt, "path": path, "replace": replace})
 
 
 def parse_import(args, line, ctx) -> Request:
@@ -353,6 +378,23 @@ def parse_longitude(args, line, ctx) -> Request:
                             "give the time of the Sun's meridian passage", field="at",
                             example=example)
     return Request("longitude", time=t, args={"log": log})
+
+
+def parse_name(what: str):
+    """``vessel NAME`` / ``title TEXT``: the rest of the line as typed (alone: show it)."""
+    def parse(args, line, ctx) -> Request:
+        if not args:
+            return Request(what, args={"what": what})
+        text = line[args[0].start:].strip()
+        if args[0].quoted and len(args) == 1:
+            text = args[0].text.strip()
+        limit = 120 if what == "vessel" else 200
+        if not text or len(text) > limit:
+            raise NavInputError(f"give the {what}" if not text else
+                                f"the {what} is {len(text)} characters long; the limit is {limit}",
+                                field=what, example=f"{what} Kestrel Dawn")
+        return Request(what, entry={"kind": "setting", what: text}, args={"what": what})
+    return parse
 
 
 def parse_plain(name: str, example: str):

@@ -5,45 +5,24 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from ..angles import format_lat, format_lon
 from ..errors import NavInputError
-from .handlers import (dr_summary, reduction_report, setting_summary, show_reduction,
-                       sight_summary, time_explain, trial_reduce)
-from .state import QUIT, iso_z
+from ..timekeeping import format_date_hms, format_hm, parse_utc
+from .entries import changed_labels, changes, field_lines, sight_summary, stale_note, summary
+from .handlers import reduction_report, show_reduction, time_explain, trial_reduce
+from .common import QUIT, iso_z
 
 MAX_IMPORT_ERRORS_SHOWN = 30
 
 
 # ---------------------------------------------------------------- log, show
 
-def entry_summary(e) -> str:
-    d = e.data
-    if e.kind == "setting":
-        return setting_summary(d)
-    if e.kind == "dr":
-        return dr_summary(d)
-    if e.kind == "sight":
-        return sight_summary(d)
-    if e.kind == "fix":
-        size = (f", ellipse {d['ellipse_semi_major_nmi']:.1f} × {d['ellipse_semi_minor_nmi']:.1f}"
-                " nmi" if "ellipse_semi_major_nmi" in d else "")
-        warn = f", {len(d.get('warnings', ()))} warning(s)" if d.get("warnings") else ""
-        return (f"{d['fix_kind'].replace('_', ' ')} {format_lat(d['lat_deg'])} "
-                f"{format_lon(d['lon_deg'])} from {' '.join(d['sight_ids'])}{size}{warn}")
-    if e.kind == "note":
-        text = " ".join(d["text"].split())
-        return text if len(text) <= 60 else text[:57] + "..."
-    if e.kind == "compass_check":
-        from .sky_cmds import compass_summary
+KIND_WORD = {"passage": "passage log", "setting": "setting", "dr": "DR", "sight": "sight",
+             "fix": "fix", "note": "note", "strike": "strike", "correct": "correction",
+             "repair": "repair", "compass_check": "compass check"}
 
-        return compass_summary(d)
-    if e.kind == "strike":
-        return f"strikes {d['target']}: {d['reason']}"
-    if e.kind == "correct":
-        return f"corrects {d['target']}: {d['reason']}"
-    if e.kind == "repair":
-        return f"torn line {d['torn_line']} set aside in {d['side_file']}"
-    return ""
+
+def entry_summary(e) -> str:
+    return summary(e)
 
 
 def _marks(st, e) -> str:
@@ -52,14 +31,18 @@ def _marks(st, e) -> str:
     chain = st.log.history_of(e.id)[1:]
     marks = [f"corrected by {c.id}" for c in chain if c.kind == "correct"]
     marks += [f"STRUCK by {c.id}" for c in chain if c.kind == "strike"]
+    if e.kind == "fix" and st.lookup(e.id) is not None:
+        stale = stale_note(st, e)
+        if stale:
+            marks.append(f"! {stale}")
     return f"  [{'; '.join(marks)}]" if marks else ""
 
 
 def _when(e) -> str:
     utc = e.get("utc")
     if utc:
-        return f"{utc[:10]} {utc[11:19]}"
-    return f"(logged {e.logged_utc[11:16]})"
+        return format_date_hms(parse_utc(utc))
+    return f"(logged {format_hm(parse_utc(e.logged_utc))})"
 
 
 def run_log(st, req) -> None:
@@ -73,43 +56,47 @@ def run_log(st, req) -> None:
         st.say(f"(the latest {len(shown)} of {len(entries)} entries; `log all` lists them all)")
     for raw in shown:
         cur = st.lookup(raw.id) or raw
-        st.say(f"{raw.id}  {raw.kind:<8} {_when(cur):<20} {entry_summary(cur)}{_marks(st, raw)}")
+        kind = raw.kind.split("_")[0]           # compass_check: compass
+        st.say(f"{raw.id}  {kind:<8} {_when(cur):<20} {entry_summary(cur)}{_marks(st, raw)}")
 
 
-def _value(v) -> str:
-    if isinstance(v, tuple):
-        return " ".join(map(str, v))
-    return str(v)
+def _logged(e) -> str:
+    return f"{format_date_hms(parse_utc(e.logged_utc))} UTC"
 
 
 def run_show(st, req) -> None:
     eid = req.args["id"]
     raw = st.raw(eid)
     if raw.kind in ("strike", "correct"):
-        st.say(f"{eid}: {raw.kind} of {raw['target']}, logged {raw.logged_utc}: {raw['reason']}")
+        st.say(f"{eid}: {KIND_WORD[raw.kind]} of {raw['target']}, logged {_logged(raw)}: "
+               f"{raw['reason']}")
         eid, raw = raw["target"], st.raw(raw["target"])
     cur = st.lookup(eid)
     shown = cur or raw
-    st.say(f"{eid}  {raw.kind}, logged {raw.logged_utc}" + ("" if cur or raw.kind in (
+    kind = KIND_WORD.get(raw.kind, raw.kind)
+    if raw.kind == "fix":
+        kind = shown["fix_kind"].replace("_", " ")
+    st.say(f"{eid}  {kind}, logged {_logged(raw)}" + ("" if cur or raw.kind in (
         "passage", "repair") else "  -- STRUCK"))
-    for k, v in shown.data.items():
-        if k not in ("id", "kind", "logged_utc"):
-            st.say(f"  {k:<22}{_value(v)}")
+    st.say(*field_lines({k: v for k, v in shown.data.items()
+                         if not (raw.kind == "fix" and k == "fix_kind")}))
     history = st.log.history_of(eid)[1:] if raw.kind not in ("passage",) else []
     if history:
         st.say("  history:")
         before = raw.data
         for h in history:
             if h.kind == "strike":
-                st.say(f"    {h.id} {h.logged_utc}  struck: {h['reason']}")
+                st.say(f"    {h.id} {_logged(h)}  struck: {h['reason']}")
                 continue
             after = h["replacement"]
-            changed = [f"{k} {_value(before.get(k, '(none)'))} -> {_value(after.get(k, '(none)'))}"
-                       for k in sorted(set(before) | set(after))
-                       if k not in ("id", "kind", "logged_utc") and before.get(k) != after.get(k)]
-            st.say(f"    {h.id} {h.logged_utc}  corrected: {h['reason']}")
-            st.say(*(f"      {c}" for c in changed))
+            st.say(f"    {h.id} {_logged(h)}  corrected: {h['reason']}")
+            st.say(*(f"      {c}" for c in changes(before, after)))
             before = after
+    if raw.kind == "fix" and cur is not None:
+        stale = stale_note(st, cur)
+        if stale:
+            st.say(*st.wrap(f"  caution: this fix {stale}; strike it and run fix again to use "
+                            "the sights as they now stand", "    "))
     if raw.kind == "sight" and cur is not None:
         st.say(f"  time: {time_explain(cur)}")
         show_reduction(st, cur)
@@ -144,7 +131,7 @@ def run_correct(st, req) -> None:
     used = _fixes_using(st, eid) if kind == "sight" else []
     e = st.log.correct(eid, req.args["reason"], changes)
     st.changed()
-    names = ", ".join(sorted({k for k in changes if k not in ("kind",)}))
+    names = changed_labels(k for k in changes if k != "kind")
     st.say(f"logged {e.id}: correction of {eid} ({names}): {req.args['reason']}")
     if req.time is not None:
         st.say(f"  time: {req.time.explain}")
@@ -194,7 +181,8 @@ def run_plot(st, req) -> None:
         kind = result.fix.kind
         plot_fix_sheet(result.fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
                        title=f"{st.vessel}: {kind} {result.fix.utc:%Y-%m-%d %H:%M} UTC ({fid})",
-                       path=out)
+                       path=out, replace=req.args.get("replace", False),
+                       replace_hint=SHELL_REPLACE_HINT)
         _, moved = rhumb_line(fx["lat_deg"], fx["lon_deg"], result.fix.lat_deg,
                               result.fix.lon_deg)
         if float(moved) > 0.05:
@@ -207,21 +195,26 @@ def run_plot(st, req) -> None:
     track = [ExportPoint(t, lat, lon, _export_point_kind(b), "")
              for t, lat, lon, b in st.passage.track_points()]
     fixes, _ = points_from_log(st.log)
+    if not track and not fixes:
+        raise NavInputError("nothing to plot yet: the log holds no DR position and no fix; "
+                            "enter a DR, or take sights and run fix", field="plot",
+                            example="dr 41 12.5 N 032 07.1 W course 245 speed 6.5 at 18:00")
     out = Path(path) if path else _next_to_log(st, "-passage.png")
-    plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out)
+    plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out,
+                 replace=req.args.get("replace", False), replace_hint=SHELL_REPLACE_HINT)
     st.say(f"passage plot written to {out}")
 
 
-def _write_new(path: Path, text: str) -> None:
-    try:
-        with open(path, "x", encoding="utf-8", newline="") as f:
-            f.write(text)
-    except FileExistsError:
-        raise NavInputError(f"{path} already exists; an export never overwrites a file",
-                            field="file", example=f"export ... {path.stem}-2{path.suffix}") from None
-    except OSError as err:
-        raise NavInputError(f"{path} cannot be written ({err.strerror})", field="file",
-                            example="a file in a folder you can write to") from None
+SHELL_REPLACE_HINT = "the word replace at the end"
+
+
+def _write_new(st, path: Path, text: str, replace: bool) -> None:
+    """The file rules of nav.files, shared with the CLI (its --replace is our word replace)."""
+    from ..files import write_output
+
+    write_output(path, text, replace=replace, field="file",
+                 example=f"export ... {path.stem}-2{path.suffix}",
+                 replace_hint=SHELL_REPLACE_HINT, protect=[st.log.path])
 
 
 def run_export(st, req) -> None:
@@ -241,7 +234,7 @@ def run_export(st, req) -> None:
         rows = ex.sight_rows(st.log)
         text = ex.sights_to_csv(rows, ex.SIGHT_CSV_COLUMNS)
         what = f"{len(rows)} sight(s)"
-    _write_new(path, text)
+    _write_new(st, path, text, req.args.get("replace", False))
     st.say(f"exported {what} as {fmt.upper() if fmt != 'geojson' else 'GeoJSON'} to {path}")
 
 
@@ -295,8 +288,9 @@ def run_import(st, req) -> None:
 # ---------------------------------------------------------------- help, quit
 
 def run_help(st, req) -> None:
-    from .registry import ALIASES, COMMANDS, COMMANDS_LIST, TOPICS
-
+    table = st.commands
+    ALIASES, COMMANDS, COMMANDS_LIST, TOPICS = (table.aliases, table.by_name, table.list,
+                                                table.topics)
     topic = req.args["topic"]
     if topic is None:
         width = max(len(c.name) for c in COMMANDS_LIST)
