@@ -1,5 +1,5 @@
-"""Plots drawn in worker processes (nav/commands/sheet_pool.py): the same files as drawn in
-order, and a file that cannot be written is refused in one line, as the plot itself refuses it.
+"""Plots drawn in worker processes (nav/commands/sheet_pool.py): the files are written, and a
+file that cannot be written is refused in one line, as the plot itself refuses it.
 
 Reference: the PNG signature (ISO/IEC 15948, the first 8 bytes of every PNG file)."""
 
@@ -41,4 +41,5 @@ def test_a_plot_that_cannot_be_written_is_refused(tmp_path, workers):
         pool.draw("plot_passage", _track(), [], title="Marram Light (invented)", path=blocked)
         pool.close()
     pool.abandon()
-    assert err.value.field == "path" and "cannot write" in str(err.value)
+    assert err.value.field == "path" and "is a folder" in str(err.value)   # nav.files' rule
+    assert blocked.is_dir()                                                 # left as it was
