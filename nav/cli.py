@@ -11,7 +11,7 @@ import argparse
 import importlib
 import sys
 
-from .errors import NavError
+from .errors import NavError, printable
 
 # The subcommand modules, in the order their commands appear in --help.
 COMMAND_MODULES = (
@@ -37,7 +37,7 @@ class _Parser(argparse.ArgumentParser):
 
     def error(self, message: str):  # pragma: no cover - exercised through main()
         self.print_usage(sys.stderr)
-        self.exit(EXIT_INPUT, f"nav: error: {message}\n")
+        self.exit(EXIT_INPUT, f"nav: error: {printable(message)}\n")
 
 
 def build_parser() -> argparse.ArgumentParser:

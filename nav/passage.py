@@ -193,10 +193,11 @@ class Passage:
         s = self._settings_before.get(entry.id, self.settings)
         t = _utc(entry)
         if "dr_lat_deg" in entry.data:
-            lat, lon, given = entry["dr_lat_deg"], entry["dr_lon_deg"], True
+            lat, lon, given, age_h = entry["dr_lat_deg"], entry["dr_lon_deg"], True, 0.0
         else:
             w = self.where(t)
             lat, lon, given = w.lat_deg, w.lon_deg, False
+            age_h = w.age.total_seconds() / 3600.0
         leg = self.leg_at(t)
 
         def pick(name, default):
@@ -211,7 +212,7 @@ class Passage:
             pressure_hpa=pick("pressure_hpa", s.pressure_hpa),
             horizon=pick("horizon", s.horizon), dr_lat_deg=lat, dr_lon_deg=lon, dr_given=given,
             course_deg=leg.course_deg if leg else None, speed_kn=leg.speed_kn if leg else None,
-            sigma_arcmin=pick("sigma_arcmin", 1.0), note=entry.get("note", ""))
+            sigma_arcmin=pick("sigma_arcmin", 1.0), note=entry.get("note", ""), dr_age_h=age_h)
 
     def reduction_view(self, sight_entry) -> "Passage":
         """The passage a logged sight is reduced from: the one without the fixes it went into
@@ -233,8 +234,11 @@ class Passage:
         used = {sid for e in self.fix_entries for sid in e["sight_ids"]}
         return [(e, r) for e, r in self.sights() if e.id not in used]
 
-    def fix_from(self, sight_ids: Sequence[str], *, confidence: float = 0.95):
-        """Fix or running fix from the named sights (advanced along the legs to the last one)."""
+    def fix_from(self, sight_ids: Sequence[str], *, confidence: float = 0.95,
+                 keep_doubtful: bool = False):
+        """Fix or running fix from the named sights (advanced along the legs to the last one);
+        the entries returned are those of the sights used (a doubtful one is left out unless
+        `keep_doubtful`: :mod:`nav.plausibility`)."""
         from .workflow import fix_from_rows
 
         chosen = []
@@ -251,8 +255,9 @@ class Passage:
         rows = [r for _, r in chosen]
         last = rows[-1]
         runs = [self.run(r.utc, last.utc, r.dr_lat_deg, r.dr_lon_deg) for r in rows]
-        result = fix_from_rows(rows, confidence=confidence, runs=runs)
-        return result, [e for e, _ in chosen]
+        result = fix_from_rows(rows, confidence=confidence, runs=runs,
+                               keep_doubtful=keep_doubtful, names=[e.id for e, _ in chosen])
+        return result, [chosen[i][0] for i in result.used]
 
     # ------------------------------------------------------------ for plots and export
 

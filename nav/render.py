@@ -11,6 +11,7 @@ import numpy as np
 
 from . import CAUTION
 from .angles import format_arcmin, format_dm, format_lat, format_lon
+from .plausibility import FAR_FROM_DR
 from .timekeeping import format_date_hms, format_utc, from_datetime64, round_to_second
 
 LIMB_WORD = {"lower": "lower limb", "upper": "upper limb", "center": "centre"}
@@ -25,12 +26,15 @@ def intercept_text(intercept_nmi: float) -> str:
     return f"{abs(x):.1f} nmi {'toward' if x >= 0 else 'away'} ({abs(x):.1f} {'T' if x >= 0 else 'A'})"
 
 
-def sight_title(s, number: int | None = None, row: int | None = None) -> str:
-    """``Sight 3 (row 3): Sun lower limb, 2026-03-20 10:42:10 UTC``."""
+def sight_title(s, number: int | None = None, row: int | None = None, *,
+                line: int | None = None) -> str:
+    """``Sight 3 (line 4): Sun lower limb, 2026-03-20 10:42:10 UTC`` (a file's line, or a row)."""
     t = from_datetime64(s.utc) if isinstance(s.utc, np.datetime64) else s.utc
     limb = f" {LIMB_WORD[s.limb]}" if s.limb else ""
     head = f"Sight {number}" if number is not None else "Sight"
-    if row is not None and row != number:
+    if line is not None:
+        head += f" (line {line})"
+    elif row is not None and row != number:
         head += f" (row {row})"
     return f"{head}: {s.body}{limb}, {format_date_hms(t)} UTC"
 
@@ -99,6 +103,7 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
 
     e = fix.ellipse
     kind = "Running fix" if fix.kind == "running fix" else "Fix"
+    far: list[str] = []
     out = [f"{kind} at {format_date_hms(fix.utc)} UTC from {fix.n_sights} sights",
            f"  position     {format_lat(fix.lat_deg)}  {format_lon(fix.lon_deg)}",
            f"  ellipse      {e.confidence * 100:g}%: {e.semi_major_nmi:.1f} \u00d7 {e.semi_minor_nmi:.1f} nmi"
@@ -108,6 +113,8 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
         course, dist = rhumb_line(dr_lat_deg, dr_lon_deg, fix.lat_deg, fix.lon_deg)
         out.append(f"  from DR      {float(dist):.1f} nmi {float(course):05.1f}\u00b0 "
                    f"(DR {format_lat(dr_lat_deg)}  {format_lon(dr_lon_deg)})")
+        far = [w for w in fix.warnings if w.startswith(FAR_FROM_DR)]
+        out += [f"  !! {w}" for w in far]      # prominent: right under the position
     cut_name = "angle of cut" if fix.n_sights == 2 else "widest cut"
     out.append(f"  geometry     {cut_name} {fix.cut_angle_deg:.0f}\u00b0, azimuth spread "
                f"{fix.azimuth_spread_deg:.0f}\u00b0, {fix.iterations} iterations"
@@ -116,7 +123,7 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
     for i, label in enumerate(fix.labels):
         flag = "  << inconsistent with the others" if fix.flags[i] else ""
         out.append(f"    {label:<24}{fix.residuals_nmi[i]:+6.2f}  Zn {fix.zn_deg[i]:05.1f}\u00b0{flag}")
-    out += [f"  ! {w}" for w in fix.warnings]
+    out += [f"  ! {w}" for w in fix.warnings if w not in far]
     return out
 
 
@@ -239,9 +246,11 @@ def noon_lines(p) -> list[str]:
     rows = [("UTC", f"{utc:%H:%M:%S}", f"{utc:%Y-%m-%d}")]
     if n.zone_time is not None:
         zt = _second(n.zone_time)
-        zd_h = n.zone_description.total_seconds() / 3600.0
+        from .timekeeping import format_zone_description
+
         rows.append(("zone time", f"{zt:%H:%M:%S}",
-                     f"ZD {zd_h:+g} h, UTC = ZT + ZD ({zt:%Y-%m-%d})"))
+                     f"ZD {format_zone_description(n.zone_description)} h, UTC = ZT + ZD "
+                     f"({zt:%Y-%m-%d})"))
     if p.watch_reading is not None:
         rows.append(("watch", f"{_second(p.watch_reading):%H:%M:%S}",
                      f"the watch reading to expect (watch {_watch_text(p.watch_error_s)})"))

@@ -351,7 +351,7 @@ def test_invalid_line_shows_its_error_and_logs_nothing(log_path, history):
     status, out = pipe_session(keys, log_path, history=history)
     assert status == 0
     flat = " ".join(out.split())
-    assert "error: field 'hs': '95' is outside -1° to 90°" in flat      # parse_altitude's message
+    assert "error: field 'hs': Hs 95° is above 90°" in flat  # nav.fields.check_hs_horizon's message
     assert "error: field 'horizon': 'sky' is not a horizon" in flat     # parse_horizon's message
     assert flat.count("the line is kept at the prompt to be mended; Ctrl-C clears it") == 2
     log = load_log(log_path)
@@ -395,7 +395,7 @@ def test_guided_answer_refused_is_shown_and_kept(log_path, history):
             + enter("", "", "", "quit"))
     status, out = pipe_session(keys, log_path, history=history)
     assert status == 0
-    assert "error: field 'hs': '95' is outside" in " ".join(out.split())
+    assert "error: field 'hs': Hs 95° is above 90°" in " ".join(out.split())  # check_hs_horizon
     assert "the answer is kept to be mended; Ctrl-C gives up the whole entry" in out
     (s,) = load_log(log_path).effective_entries("sight")
     assert s["hs"] == "41 25.1"
@@ -643,8 +643,8 @@ def test_import_of_a_batch_file(state, tmp_path):
                    "2026-06-14T22:58:00Z,Nosuchstar,34,,\n2026-06-14T23:00:00Z,Deneb,95,,\n",
                    encoding="utf-8")
     out = run_lines(state, f"import {bad}")
-    assert "row 2, field 'body'" in out and "row 3, field 'hs'" in out
-    assert "error: field 'file': 2 problem(s)" in out and "(rows 2, 3)" in out
+    assert "line 3, field 'body'" in out and "line 4, field 'hs'" in out
+    assert "error: field 'file': 2 problem(s)" in out and "(lines 3, 4)" in out
     assert len(state.log.entries) == 4                                # nothing appended
 
 
@@ -665,7 +665,7 @@ def test_export_writes_files_and_never_overwrites(state, tmp_path):
 
 @pytest.mark.parametrize("typed", ["41 12.5 N 032 07.1 W", "41°12.5′N 32°07.1′W",
                                    "N41 12.5 W032 07.1", "41 12.5 N, 032 07.1 W",
-                                   "41.208333333333336 -32.118333333333336", "41 12.5 -32 07.1"])
+                                   "41.208333333333336 -32.118333333333336"])
 def test_dr_positions_in_every_accepted_form(state, typed):
     run_lines(state, f"dr {typed} at 2026-06-14T20:00:00Z")
     (dr,) = state.log.effective_entries("dr")
@@ -677,7 +677,13 @@ def test_dr_positions_in_every_accepted_form(state, typed):
 @pytest.mark.parametrize("typed, why", [("N41 12.5", "hemisphere of both"),
                                         ("41 12.5 N", "no longitude"),
                                         ("41 12.5 32", "not a latitude and a longitude"),
-                                        ("41 12.5 N 200 00 W", "outside 180° W to 180° E")])
+                                        ("41 12.5 N 200 00 W", "outside 180° W to 180° E"),
+                                        # issue 7 item 1: degrees and minutes need their letter
+                                        ("41 12.5 -32 07.1", "without N or S"),
+                                        ("41 12.5, 032 07.1", "without N or S"),
+                                        ("41 12.5 N, 032 07.1", "without E or W"),
+                                        ("032 07.1 W 41 12.5 N", "longitude first"),
+                                        ("032 07.1 W, 41 12.5 N", "swapped")])
 def test_dr_positions_refused(state, typed, why):
     out = run_lines(state, f"dr {typed} at 2026-06-14T20:00:00Z")
     assert out.startswith("error: ") and why in out

@@ -51,6 +51,11 @@ def run_set(st, req) -> None:
         return
     e = st.append(req.entry)
     st.say(f"logged {e.id}: setting {setting_summary(e.data)}")
+    if "temperature_c" in e.data or "pressure_hpa" in e.data:
+        from ..fields import weather_warnings
+
+        s = st.settings
+        st.say(*(f"  ! {w}" for w in weather_warnings(s.temperature_c, s.pressure_hpa)))
 
 
 # ---------------------------------------------------------------- dr, course, speed
@@ -161,6 +166,22 @@ def run_sight(st, req) -> None:
                f"`show {e.id}`")
         return
     show_reduction(st, e)
+    say_doubt(st, e)
+
+
+def say_doubt(st, e) -> None:
+    """Say why a logged sight is probably wrong, if its DR cannot explain it (nav.plausibility)."""
+    from ..plausibility import doubtful_sights
+    from ..workflow import reduce_rows
+
+    try:
+        row = st.passage.reduction_view(e).sight_row(e)
+        doubts = doubtful_sights([row], reduce_rows([row]))
+    except NavInputError:
+        return
+    for d in doubts:
+        st.say(*textwrap.wrap(f"!! doubtful, left out of fixes unless asked (fix ... use-doubtful):"
+                              f" {d.text()}", 96, initial_indent="  ", subsequent_indent="     "))
 
 
 def _answer_time(st, text: str):
@@ -172,7 +193,7 @@ def _answer_time(st, text: str):
 
 def guided_sight(st) -> None:
     """`sight` alone: one field at a time, defaults from the state; then the one-line form."""
-    from ..fields import check_limb, parse_body, parse_limb
+    from ..fields import check_hs_horizon, check_limb, parse_body, parse_limb
 
     s = st.settings
     st.say("New sight (Enter takes the value in brackets; Ctrl-C gives up):")
@@ -186,8 +207,10 @@ def guided_sight(st) -> None:
                   lambda t: _answer_time(st, t), "time")
     words = when.strip().split(None, 1)
     when_words = when.strip() if words[0].lower() in ("zt", "at") else f"at {when.strip()}"
-    hs = st.ask("Hs (34 12.3, 34°12.3′ or 34.205)", None,
-                lambda t: OPTIONS["hs"].parse(t, "hs"), None)
+    def _hs(text):
+        check_hs_horizon(OPTIONS["hs"].parse(text, "hs")["hs_deg"], s.horizon)
+
+    hs = st.ask("Hs (34 12.3, 34°12.3′ or 34.205)", None, _hs, None)
     parts.append(hs.strip())
     if limb and limb != "lower":
         parts += ["limb", limb]
@@ -268,7 +291,15 @@ def run_fix(st, req) -> None:
     from ..render import fix_lines
 
     ids = req.args["ids"] or _default_sights(st, req.args.get("from"))
-    result, entries = st.passage.fix_from(ids)
+    from ..plausibility import DoubtfulSightsError
+
+    try:
+        result, entries = st.passage.fix_from(ids,
+                                              keep_doubtful=req.args.get("keep_doubtful", False))
+    except DoubtfulSightsError as err:
+        st.say(*(f"  {note}" for note in err.notes))
+        raise NavInputError(err.reason + "; `fix ... use-doubtful` computes it with them",
+                            field=err.field, example="fix e0004 e0005 use-doubtful") from None
     fix = result.fix
     lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg)
     e = st.append(fix_entry(fix, [x.id for x in entries]))

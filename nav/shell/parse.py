@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 from datetime import timedelta
 
 from ..errors import NavInputError
-from ..fields import check_limb, parse_body, parse_sight_utc
+from ..fields import check_hs_horizon, check_limb, parse_body, parse_sight_utc
 from .times import (TimeRead, now_time, parse_at, parse_time_options, parse_zt,
                     passage_time)
 from .words import (CORRECTABLE, DR_WORDS, EXPORT_FORMATS, NUMERIC_START, OPTIONS,
@@ -132,22 +132,28 @@ def parse_sight(args, line, ctx) -> Request:
     extra = option_fields(opts)
     entry["limb"] = check_limb(entry["body"], extra.pop("limb", None))
     entry.update(extra)
+    check_hs_horizon(entry["hs_deg"], entry.get("horizon") or ctx.settings.horizon)
     t = parse_time_options(opts, ctx, sight=True, required=True)
     entry.update(t.entry_fields())
     entry["source"] = "shell"
     return Request("sight", entry=entry, time=t)
 
 
+USE_DOUBTFUL = "use-doubtful"
+
+
 def parse_fix(args, line, ctx) -> Request:
+    keep = [a for a in args if a.text.lower() == USE_DOUBTFUL and not a.quoted]
+    args = [a for a in args if a not in keep]
     if args and args[0].text.lower() == "from" and not args[0].quoted:
-        rest = line[args[0].end:].strip()
+        rest = " ".join(w for w in line[args[0].end:].split() if w.lower() != USE_DOUBTFUL)
         if not rest:
             raise NavInputError("give the time of the first sight to take", field="from",
                                 example="fix from 08:30, or fix from zt 06:30")
         words = rest.split(None, 1)
         start = (parse_zt(words[1], ctx, "from") if words[0].lower() == "zt" and len(words) == 2
                  else parse_at(rest, ctx, "from"))
-        return Request("fix", args={"ids": [], "from": start})
+        return Request("fix", args={"ids": [], "from": start, "keep_doubtful": bool(keep)})
     ids = [_entry_id(a.text, ctx, "sights", kinds=("sight",)) for a in args]
     twice = sorted({i for i in ids if ids.count(i) > 1})
     if twice:
@@ -158,7 +164,7 @@ def parse_fix(args, line, ctx) -> Request:
         if ctx.lookup(sid) is None:
             raise NavInputError(f"{sid} is struck; it cannot go into a fix", field="sights",
                                 example="the ids of sights that stand")
-    return Request("fix", args={"ids": ids})
+    return Request("fix", args={"ids": ids, "keep_doubtful": bool(keep)})
 
 
 def parse_where(args, line, ctx) -> Request:
@@ -244,6 +250,9 @@ def parse_correct(args, line, ctx) -> Request:
                             "name a field and its new value", field="field",
                             example=f"fields of a {cur.kind}: " + ", ".join(words))
     changes = option_fields(opts)
+    if cur.kind == "sight" and ("hs_deg" in changes or "horizon" in changes):
+        check_hs_horizon(changes.get("hs_deg", cur["hs_deg"]),
+                         changes.get("horizon") or cur.get("horizon") or ctx.settings.horizon)
     t = parse_time_options(opts, ctx, sight=cur.kind == "sight")
     if t is not None:
         changes.update(t.entry_fields() if cur.kind == "sight" else

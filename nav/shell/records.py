@@ -8,7 +8,7 @@ from pathlib import Path
 from ..errors import NavInputError
 from ..timekeeping import format_date_hms, format_hm, parse_utc
 from .entries import changed_labels, changes, field_lines, sight_summary, stale_note, summary
-from .handlers import reduction_report, show_reduction, time_explain, trial_reduce
+from .handlers import reduction_report, say_doubt, show_reduction, time_explain, trial_reduce
 from .common import QUIT, iso_z
 
 MAX_IMPORT_ERRORS_SHOWN = 30
@@ -241,13 +241,17 @@ def run_export(st, req) -> None:
 # ---------------------------------------------------------------- import
 
 def _refuse_file(st, path: str, errors) -> None:
-    for err in errors[:MAX_IMPORT_ERRORS_SHOWN]:
-        st.say(f"  {path}: {err}")
-    if len(errors) > MAX_IMPORT_ERRORS_SHOWN:
-        st.say(f"  ... and {len(errors) - MAX_IMPORT_ERRORS_SHOWN} more")
-    rows = sorted({e.row for e in errors if e.row is not None})
+    from ..sightfile import summarise_errors
+
+    said = summarise_errors(errors)
+    for line in said[:MAX_IMPORT_ERRORS_SHOWN]:
+        st.say(f"  {path}: {line}")
+    if len(said) > MAX_IMPORT_ERRORS_SHOWN:
+        st.say(f"  ... and {len(said) - MAX_IMPORT_ERRORS_SHOWN} more")
+    lines = sorted({e.line if e.line is not None else e.row for e in errors
+                    if e.line is not None or e.row is not None})
     raise NavInputError(f"{len(errors)} problem(s) in {path}" +
-                        (f" (rows {', '.join(map(str, rows[:20]))})" if rows else "") +
+                        (f" (lines {', '.join(map(str, lines[:20]))})" if lines else "") +
                         "; nothing was imported", field="file", example="mend the rows, then import")
 
 
@@ -259,6 +263,8 @@ def run_import(st, req) -> None:
     sf = read_sight_file(path)
     if sf.errors:
         _refuse_file(st, path, list(sf.errors))
+    for warning in sf.warnings:
+        st.say(f"  warning: {warning}")
     rows = list(sf.rows)
     try:
         reduce_rows(rows)
@@ -281,6 +287,7 @@ def run_import(st, req) -> None:
             red = reduce_rows([st.passage.sight_row(e)]).sight(0)
             st.say(f"  {e.id}  {sight_summary(e.data)}  intercept {float(red.intercept_nmi):+.1f}"
                    f" nmi, Zn {float(red.zn_deg):05.1f}°" + ("  !" if red.warnings else ""))
+            say_doubt(st, e)
         except NavInputError as err:
             st.say(f"  {e.id}  {sight_summary(e.data)}  not reduced: {err.reason}")
 

@@ -73,7 +73,7 @@ COMMANDS_LIST = (
              "the reduction is worked from the DR at the sight's time"),
             ("sight Vega 34 12.3 at 22:55:00", "sight Sun 52 08.4 limb upper zt 11:42:05",
              "sight Rigil Kentaurus 18 44.0 at 2026-06-14T22:58:30Z note low, hazy")),
-    Command("fix", "fix [SIGHT-ID ... | from TIME]",
+    Command("fix", "fix [SIGHT-ID ... | from TIME] [use-doubtful]",
             "fix or running fix: the latest group of sights, the sights named, or those from a "
             "time on",
             parse_fix, handlers.run_fix, (), "sight",
@@ -83,8 +83,10 @@ COMMANDS_LIST = (
              "fix from TIME: the sights not used by a fix yet from TIME on (a running fix over "
              "a longer run); or name the sights, each once",
              "earlier sights are advanced along the DR track to the time of the last one",
-             "the fix is logged with its sights, error ellipse and warnings"),
-            ("fix", "fix e0004 e0005 e0007", "fix from 08:30")),
+             "the fix is logged with its sights, error ellipse and warnings",
+             "a sight its DR cannot explain (50 nmi + 2 kn for each hour since the DR was set) "
+             "is left out and named with the likely slip; use-doubtful keeps it in"),
+            ("fix", "fix e0004 e0005 e0007", "fix from 08:30", "fix e0004 e0005 use-doubtful")),
     Command("where", f"where [{TIME}]", "where the vessel is, and on what basis",
             parse_where, handlers.run_where, ("at", "zt"), None,
             (f"without a time: now, while the latest entry is at most {LIVE_HOURS} h old; else "
@@ -243,6 +245,8 @@ TOPICS = {
         "                             set by `set zone` and `set watch`:",
         "                             ZT = watch − watch error (a fast watch is subtracted),",
         "                             UTC = ZT + ZD (ZD + in west longitude: ZD +3 for 45° W)",
+        "                             ZD from -12 to +12, written +3, -10 or -5:30; an ISO offset",
+        "                             such as +03:00 has the opposite sign and is refused",
         "Entries other than sights are for now (UTC) when no time is given; a sight needs its time.",
         "`where` without a time answers for now, or for the latest entry when the log is more "
         f"than {LIVE_HOURS} h behind the clock (a passage entered after the fact).",
@@ -252,6 +256,8 @@ TOPICS = {
         "  41 12.5 N 032 07.1 W    41°12.5′N 32°07.1′W    N41 12.5 W032 07.1",
         "  or signed decimal degrees (north +, east +): 41.2083 -32.118",
         "  a comma may separate them: 41 12.5 N, 032 07.1 W",
+        "Degrees and minutes without N/S or E/W are refused (a lost W is thousands of miles);",
+        "a longitude first, or a W in the latitude, is named as a swap.",
     ),
 }
 

@@ -22,7 +22,7 @@ from typing import Mapping
 
 from ..errors import NavInputError, OutOfRangeError
 from ..fields import parse_sight_utc
-from ..timekeeping import (format_date_hms, parse_naive_time, parse_utc, round_to_second,
+from ..timekeeping import (format_date_hms, format_zone_description, parse_naive_time, parse_utc, round_to_second,
                            zone_time_to_utc)
 
 _TIME_OF_DAY = re.compile(r"^(?P<h>\d{1,2}):(?P<m>\d{2})(?::(?P<s>\d{2}(?:\.\d+)?))?$")
@@ -49,7 +49,7 @@ class TimeRead:
                "time_text": self.text, "zone_description": None, "zone_description_h": None,
                "watch_error": None, "watch_error_s": None}
         if self.source == "watch":
-            out.update(zone_description=f"{self.zone_description_h:+g}",
+            out.update(zone_description=format_zone_description(self.zone_description_h),
                        zone_description_h=self.zone_description_h,
                        watch_error=watch_text(self.watch_error_s),
                        watch_error_s=self.watch_error_s)
@@ -64,7 +64,8 @@ def watch_text(seconds: float) -> str:
 
 
 def zone_text(hours: float) -> str:
-    return f"{hours:+g} h" if hours else "0 (UTC)"
+    """``+3 h``, ``-5:30 h``, ``0 (UTC)``: the one notation of :mod:`nav.timekeeping`."""
+    return f"{format_zone_description(hours)} h" if hours else "0 (UTC)"
 
 
 def _default_date(ctx, zone_h: float = 0.0, hms: str | None = None) -> tuple[date, str]:
