@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import gc
 import json
 import sys
 
@@ -12,6 +13,7 @@ from ..errors import NavInputError
 # (every `nav` start, `nav --version` included) imports neither numpy nor skyfield.
 
 MAX_ROWS = 2_000_000
+CHUNK_ROWS = 16_384         # rows computed and written at a time (bounded memory)
 GROUPS = {
     "all": lambda: _almanac().body_names(),
     "stars": lambda: _almanac().body_names()[6:],
@@ -69,44 +71,84 @@ def _expand_bodies(names: list[str]) -> list[str]:
 def run(args) -> int:
     import numpy as np
 
-    from ..timekeeping import time_range
-
     bodies = _expand_bodies(args.bodies)
     when, single = _instants(args)
-    if single:
-        t64 = np.array([np.datetime64(when.replace(tzinfo=None), "us")])
-    else:
-        start, stop, step = when
-        if stop >= start:
-            n_rows = (int((stop - start) / step) + 1) * len(bodies)
-            if n_rows > MAX_ROWS:
-                raise NavInputError(
-                    f"that table would have {n_rows:,} rows ({len(bodies)} bodies); the limit is "
-                    f"{MAX_ROWS:,}", field="step", example="a larger --step, a shorter span or fewer bodies")
-        t64 = time_range(start, stop, step, max_rows=MAX_ROWS)
-    al = _almanac()
-    from ..ephemeris import check_range
-
-    check_range(t64, "utc" if single else ("from" if t64[0] < np.datetime64("1900-01-01") else "to"))
-    results = al.almanac(bodies, t64)
-    ut1 = _ut1_caution(t64)
     out = sys.stdout
+    if single:
+        from ..ephemeris import check_range
+
+        al = _almanac()
+        t64 = np.array([np.datetime64(when.replace(tzinfo=None), "us")])
+        check_range(t64, "utc")
+        results = al.almanac(bodies, t64)
+        ut1 = _ut1_message(t64)
+        if args.json:
+            _write_json(out, [(results, t64)], ut1)
+        else:
+            _write_single(out, results, t64[0], ut1)
+        return 0
+    chunks = table_chunks(bodies, *when)
+    start, stop, step = when
+    first = np.datetime64(start.replace(tzinfo=None), "us")
+    last = first + (int((stop - start) / step)) * np.timedelta64(int(step.total_seconds() * 1e6), "us")
+    ut1 = _ut1_message(np.array([first, last]))
     if args.json:
-        _write_json(out, results, t64, ut1)
-    elif single:
-        _write_single(out, results, t64[0], ut1)
+        _write_json(out, chunks, ut1)
     else:
-        _write_table(out, results, t64, ut1)
+        _write_table(out, chunks, ut1)
     return 0
 
 
-def _ut1_caution(t64):
-    """(message, mask of the instants it concerns), or (None, None) where UT1 is measured."""
+def _ut1_message(t64):
+    """The UT1 caution line for these instants (the latest decides), or None where measured."""
     from ..ephemeris import ut1_status
+
+    return ut1_status(t64).message
+
+
+def _ut1_mask(t64, message):
+    """Which instants the UT1 caution concerns (those past the IERS measured values)."""
     from ..iers import beyond_measured
 
-    message = ut1_status(t64).message
-    return (message, beyond_measured(t64)) if message else (None, None)
+    return beyond_measured(t64) if message else None
+
+
+def table_chunks(bodies, start, stop, step, chunk_rows: int | None = None):
+    """The table's rows as (results, t64) a chunk of instants at a time: a generator, so a table
+    of any length is computed and written in memory bounded by the chunk (CHUNK_ROWS rows).
+
+    The span is checked (row limit, ephemeris range) before the first chunk is yielded, so a
+    refused table prints nothing.
+    """
+    import numpy as np
+
+    from ..timekeeping import UTC, time_range
+
+    if stop < start:
+        time_range(start, stop, step, max_rows=MAX_ROWS)          # refuses: --from after --to
+    n = int((stop - start) / step) + 1
+    if n * len(bodies) > MAX_ROWS:
+        raise NavInputError(
+            f"that table would have {n * len(bodies):,} rows ({len(bodies)} bodies); the limit "
+            f"is {MAX_ROWS:,}", field="step", example="a larger --step, a shorter span or fewer bodies")
+    base = np.datetime64(start.astimezone(UTC).replace(tzinfo=None), "us")
+    dt = np.timedelta64(int(step.total_seconds() * 1e6), "us")
+    ends = np.array([base, base + (n - 1) * dt])
+    from ..ephemeris import check_range
+
+    check_range(ends, "from" if ends[0] < np.datetime64("1900-01-01") else "to")
+    per = max(1, (chunk_rows or CHUNK_ROWS) // len(bodies))
+    al = _almanac()
+
+    def gen():
+        for i in range(0, n, per):
+            t64 = base + np.arange(i, min(i + per, n)) * dt
+            yield al.almanac(bodies, t64), t64
+            # The chunk's skyfield objects hold reference cycles: collect the youngest
+            # generation (about 0.1 ms) so the peak stays flat rather than waiting for the
+            # collector's thresholds.
+            gc.collect(0)
+    return gen()
 
 
 def _row_dict(rec, i: int, utc: str) -> dict:
@@ -129,44 +171,50 @@ def _row_dict(rec, i: int, utc: str) -> dict:
     return d
 
 
-def _write_json(out, results, t64, ut1) -> None:
+def _write_json(out, chunks, ut1=None) -> None:
+    """A JSON list written piecewise: one chunk of rows at a time, never the whole list. Rows
+    past the IERS measured values carry the UT1 caution in ``warnings``."""
     from ..render import utc_strings
 
-    utcs = utc_strings(t64)
-    message, mask = ut1
     out.write("[")
     first = True
-    for i, utc in enumerate(utcs):
-        for rec in results:
-            d = _row_dict(rec, i, utc)
-            if message and (mask is None or mask[i]):
-                d["warnings"] = [message]
-            out.write(("\n  " if first else ",\n  ") + json.dumps(d, ensure_ascii=False))
-            first = False
+    for results, t64 in chunks:
+        parts = []
+        mask = _ut1_mask(t64, ut1)
+        for i, utc in enumerate(utc_strings(t64)):
+            for rec in results:
+                d = _row_dict(rec, i, utc)
+                if ut1 and mask[i]:
+                    d["warnings"] = [ut1]
+                parts.append(("\n  " if first else ",\n  ") + json.dumps(d, ensure_ascii=False))
+                first = False
+        out.write("".join(parts))
     out.write("\n]\n")
 
 
-def _write_single(out, results, t, ut1) -> None:
+def _write_single(out, results, t, ut1=None) -> None:
     from ..render import almanac_lines
 
     lines = almanac_lines(results, t)
-    if ut1[0]:
-        lines[-1:-1] = [f"! {ut1[0]}", ""]
+    if ut1:
+        lines[-1:-1] = [f"! {ut1}", ""]
     out.write("\n".join(lines) + "\n")
 
 
-def _write_table(out, results, t64, ut1) -> None:
+def _write_table(out, chunks, ut1=None) -> None:
     from ..angles import format_dm
     from ..render import ALMANAC_HEADER, ALMANAC_NOTE, almanac_cells, utc_strings
 
-    utcs = utc_strings(t64)
     out.write(f"{'UTC':<21}{'GHA Aries':<11}" + ALMANAC_HEADER.rstrip() + "\n")
-    for i, utc in enumerate(utcs):
-        aries = format_dm(float(results[0].gha_aries_deg[i]), deg_width=3, wrap360=True)
-        for rec in results:
-            out.write(f"{utc:<21}{aries:<11}" + almanac_cells(rec, i).rstrip() + "\n")
-    if ut1[0]:
-        out.write(f"\n! {ut1[0]}\n")
+    for results, t64 in chunks:
+        lines = []
+        for i, utc in enumerate(utc_strings(t64)):
+            aries = format_dm(float(results[0].gha_aries_deg[i]), deg_width=3, wrap360=True)
+            for rec in results:
+                lines.append(f"{utc:<21}{aries:<11}" + almanac_cells(rec, i).rstrip() + "\n")
+        out.write("".join(lines))
+    if ut1:
+        out.write(f"\n! {ut1}\n")
     out.write(f"\n{ALMANAC_NOTE} {CAUTION}\n")
 
 
