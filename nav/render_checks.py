@@ -1,0 +1,59 @@
+"""Text and JSON for the checks on the sights themselves: the sight series, the fix with a
+shared altitude error, set and drift, the watch's rate. Formatting only; nothing computed here.
+"""
+
+from __future__ import annotations
+
+from .angles import format_dm, format_lat, format_lon
+from .timekeeping import format_hms
+
+
+def _iso(t) -> str:
+    return f"{t:%Y-%m-%dT%H:%M:%S}Z" if t.microsecond == 0 else \
+        f"{t:%Y-%m-%dT%H:%M:%S.%f}"[:-5] + "Z"
+
+
+def series_dict(run) -> dict:
+    """One run in the JSON contract of ``nav series --json``."""
+    return {
+        "body": run.body, "limb": run.limb,
+        "sights": [{"row": s.row, "utc": _iso(s.utc), "hs_deg": round(s.hs_deg, 7),
+                    "residual_arcmin": round(s.residual_arcmin, 3),
+                    "threshold_arcmin": round(s.threshold_arcmin, 3), "flagged": s.flagged}
+                   for s in run.shots],
+        "offset_arcmin": round(run.offset_arcmin, 3),
+        "robust_sigma_arcmin": round(run.robust_sigma_arcmin, 3),
+        "averaged": {"utc": _iso(run.averaged_utc), "hs_deg": round(run.averaged_hs_deg, 7),
+                     "from_rows": list(run.used_rows)},
+    }
+
+
+def series_lines(run) -> list[str]:
+    """One run in navigator notation: each shot's departure from the run, flags, the average."""
+    from .series import FLOOR_ARCMIN, K_SIGMA
+
+    limb = f" {run.limb} limb" if run.limb in ("lower", "upper") else ""
+    first, last = run.shots[0].utc, run.shots[-1].utc
+    out = [f"Run of {len(run.shots)} sights of {run.body}{limb}, "
+           f"{format_hms(first)}\u2013{format_hms(last)}",
+           f"  offset (Ho \u2212 Hc at the DR, median)  {round(run.offset_arcmin, 1) + 0.0:+.1f}\u2032; "
+           f"scatter (robust \u03c3) {run.robust_sigma_arcmin:.1f}\u2032; "
+           f"flag beyond {K_SIGMA:g} \u03c3 of the other shots, never under {FLOOR_ARCMIN:g}\u2032"]
+    for s in run.shots:
+        mark = f"  << {abs(s.residual_arcmin):.1f}\u2032 {'high' if s.residual_arcmin > 0 else 'low'}" \
+               if s.flagged else ""
+        out.append(f"    row {s.row:<5}{format_hms(s.utc)}  Hs {format_dm(s.hs_deg, decimals=1):>10}"
+                   f"  {round(s.residual_arcmin, 1) + 0.0:+6.1f}\u2032{mark}")
+    used = run.used_rows
+    out.append(f"  averaged sight  {format_hms(run.averaged_utc)}  Hs "
+               f"{format_dm(run.averaged_hs_deg, decimals=1)}  (from rows "
+               f"{', '.join(map(str, used))})")
+    return out
+
+
+def dr_ep_text(dr, ep) -> str:
+    """``DR 41°12.4′ N 032°07.1′ W   EP 41°10.9′ N 032°05.0′ W``."""
+    text = f"DR {format_lat(dr[0])} {format_lon(dr[1])}"
+    if ep is not None:
+        text += f"   EP {format_lat(ep[0])} {format_lon(ep[1])}"
+    return text
