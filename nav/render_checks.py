@@ -57,3 +57,17 @@ def dr_ep_text(dr, ep) -> str:
     if ep is not None:
         text += f"   EP {format_lat(ep[0])} {format_lon(ep[1])}"
     return text
+
+
+def bias_lines(bf) -> list[str]:
+    """The shared altitude error under the fix's own lines."""
+    sense = "read high" if bf.bias_arcmin > 0 else "read low"
+    out = [f"  shared error {bf.bias_arcmin:+.1f}\u2032 \u00b1 {bf.bias_sigma_arcmin:.1f}\u2032 "
+           f"(1\u03c3; + when the altitudes read high): the observed altitudes {sense}",
+           f"  position \u03c3  {bf.sigma_north_nmi:.1f} nmi N\u2013S, {bf.sigma_east_nmi:.1f} nmi "
+           "E\u2013W, with the shared error estimated"]
+    if bf.significant:
+        out.append("  usual causes: " + "; ".join(bf.causes))
+    else:
+        out.append("  not significant: the ordinary fix is as good, and has the smaller ellipse")
+    return out

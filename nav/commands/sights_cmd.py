@@ -33,6 +33,9 @@ def register(sub) -> None:
                    help="probability the error ellipse is meant to cover (default 0.95)")
     f.add_argument("--plot", metavar="FILE.png|FILE.pdf", help="also draw the plotting sheet")
     f.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
+    f.add_argument("--bias", action="store_true",
+                   help="also estimate one altitude error shared by all sights (index error, "
+                        "height of eye, abnormal dip or refraction); needs bodies all round")
     f.set_defaults(func=run_fix)
 
 
@@ -120,12 +123,16 @@ def run_fix(args) -> int:
         raise NavInputError("a fix needs at least two sights", field="file",
                             example="two or more rows of sights")
     result = fix_from_rows(rows, confidence=args.confidence, reductions=red)
-    fix = result.fix
+    fix, lops, title, bias = result.fix, result.lops, f"{result.fix.kind.capitalize()} from {args.file}", None
+    if getattr(args, "bias", False):
+        from .fix_extras import with_bias
+
+        fix, lops, title, bias = with_bias(result, args.confidence, title)
     if args.plot:
         from ..plotting import plot_fix_sheet
 
-        plot_fix_sheet(fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
-                       title=f"{fix.kind.capitalize()} from {args.file}", path=args.plot)
+        plot_fix_sheet(fix, lops, dr=(result.dr_lat_deg, result.dr_lon_deg), title=title,
+                       path=args.plot)
     if args.json:
         sights = []
         for i, row in enumerate(rows):
@@ -136,11 +143,20 @@ def run_fix(args) -> int:
             sights.append(d)
         doc = {"fix": fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
                "sights": sights, "caution": CAUTION}
+        if bias is not None:
+            from .fix_extras import bias_keys
+
+            doc["fix"].update(bias_keys(bias))
         json.dump(doc, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
         return 0
     for line in fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg):
         print(line)
+    if bias is not None:
+        from ..render_checks import bias_lines
+
+        for line in bias_lines(bias):
+            print(line)
     if args.plot:
         print(f"  plotting sheet written to {args.plot}")
     print()
