@@ -97,6 +97,23 @@ def _speed(text: str, field: str = "speed_kn") -> float:
     return parse_number(text, field, min_value=0.0, max_value=60.0, example="6.5")
 
 
+def _set(text: str, field: str = "set_deg") -> float:
+    value = parse_number(text, field, min_value=0.0, max_value=360.0,
+                         example="210 (true, the direction the current flows toward)")
+    return 0.0 if value == 360.0 else value
+
+
+def _drift(text: str, field: str = "drift_kn") -> float:
+    return parse_number(text, field, min_value=0.0, max_value=10.0, example="0.8")
+
+
+def _fix_label(text: str, field: str = "fix") -> str:
+    label = str(text).strip()
+    if len(label) > 40:
+        raise NavInputError("a fix label is at most 40 characters", field=field, example="noon")
+    return label
+
+
 def _sigma(text: str, field: str = "sigma_arcmin") -> float:
     return parse_number(text, field, min_value=0.05, max_value=30.0, example="1.0")
 
@@ -129,5 +146,9 @@ SIGHT_FIELDS: tuple[FieldSpec, ...] = (
     FieldSpec("speed_kn", _speed, False, None, "6.5", "speed, knots"),
     FieldSpec("sigma_arcmin", _sigma, False, 1.0, "1.0", "expected sight error (1σ), arcmin"),
     FieldSpec("note", lambda s, f="note": str(s)[:500], False, "", "hazy horizon", "free text"),
+    FieldSpec("set_deg", _set, False, None, "210",
+              "current's set, degrees true (toward), from this row on"),
+    FieldSpec("drift_kn", _drift, False, None, "0.8", "current's drift, knots, from this row on"),
+    FieldSpec("fix", _fix_label, False, "", "dawn", "label: rows with one label form one fix"),
 )
 SIGHT_FIELD_BY_NAME = {f.name: f for f in SIGHT_FIELDS}

@@ -87,6 +87,16 @@ SCHEMA: dict[str, dict[str, Field]] = {
             "ellipse_confidence": Field("num", lo=0, hi=1),
             "warnings": Field("texts"), "note": _NOTE},
     "note": {"text": Field("note", True, max_len=MAX_NOTE), "utc": Field("utc")},
+    # issue 10: a current in force from a time on (entered, or applied from a fix), and a
+    # comparison of a watch with a reference time
+    "current": {"utc": Field("utc", True), "time_text": Field("text"),
+                **_typed("set", "set_deg", 0, 360, required=True, hi_open=True),
+                **_typed("drift", "drift_kn", 0, 20, required=True),
+                "source": Field("text"), "note": _NOTE},
+    "watch_check": {"utc": Field("utc", True), "watch_reading": Field("text", True),
+                    "watch_error_s": Field("num", True, -3600, 3600),
+                    "reference": Field("enum", True, choices=("time signal", "gps", "reference")),
+                    "watch": Field("text", max_len=40), "note": _NOTE},
     "strike": {"target": Field("id", True), "reason": Field("text", True, max_len=500)},
     "correct": {"target": Field("id", True), "reason": Field("text", True, max_len=500),
                 "replacement": Field("object", True)},

@@ -28,8 +28,9 @@ def series_dict(run) -> dict:
     }
 
 
-def series_lines(run) -> list[str]:
-    """One run in navigator notation: each shot's departure from the run, flags, the average."""
+def series_lines(run, names=None) -> list[str]:
+    """One run in navigator notation: each shot's departure from the run, flags, the average.
+    `names`: {row: name} to call the shots by (the shell's entry ids); default ``row N``."""
     from .series import FLOOR_ARCMIN, K_SIGMA
 
     limb = f" {run.limb} limb" if run.limb in ("lower", "upper") else ""
@@ -42,12 +43,13 @@ def series_lines(run) -> list[str]:
     for s in run.shots:
         mark = f"  << {abs(s.residual_arcmin):.1f}\u2032 {'high' if s.residual_arcmin > 0 else 'low'}" \
                if s.flagged else ""
-        out.append(f"    row {s.row:<5}{format_hms(s.utc)}  Hs {format_dm(s.hs_deg, decimals=1):>10}"
+        name = names[s.row] if names else f"row {s.row}"
+        out.append(f"    {name:<9}{format_hms(s.utc)}  Hs {format_dm(s.hs_deg, decimals=1):>10}"
                    f"  {round(s.residual_arcmin, 1) + 0.0:+6.1f}\u2032{mark}")
     used = run.used_rows
+    used_names = ", ".join(names[r] for r in used) if names else "rows " + ", ".join(map(str, used))
     out.append(f"  averaged sight  {format_hms(run.averaged_utc)}  Hs "
-               f"{format_dm(run.averaged_hs_deg, decimals=1)}  (from rows "
-               f"{', '.join(map(str, used))})")
+               f"{format_dm(run.averaged_hs_deg, decimals=1)}  (from {used_names})")
     return out
 
 
@@ -70,4 +72,43 @@ def bias_lines(bf) -> list[str]:
         out.append("  usual causes: " + "; ".join(bf.causes))
     else:
         out.append("  not significant: the ordinary fix is as good, and has the smaller ellipse")
+    return out
+
+
+def _r(x, k=7):
+    return None if x is None else round(float(x), k)
+
+
+def chain_keys(c) -> dict:
+    """The keys a fix of a batch file adds to its JSON: label, EP, set and drift since the
+    previous fix, whether the lines went along the EP track."""
+    out = {}
+    if c.label:
+        out["label"] = c.label
+    if c.ep is not None:
+        out["ep_lat_deg"], out["ep_lon_deg"] = _r(c.ep[0]), _r(c.ep[1])
+    if c.set_drift is not None:
+        sd = c.set_drift
+        out["set_drift"] = {"set_deg": round(sd.set_deg, 2), "drift_kn": round(sd.drift_kn, 3),
+                            "since_utc": _iso(sd.since_utc)}
+    if c.along_ep:
+        out["advanced_along_ep"] = True
+    if c.notes:
+        out["notes"] = list(c.notes)
+    return out
+
+
+def set_drift_text(sd) -> str:
+    return (f"set {sd.set_deg:05.1f}\u00b0, drift {sd.drift_kn:.1f} kn since "
+            f"{format_hms(sd.since_utc)} ({sd.dist_nmi:.1f} nmi from the DR in {sd.hours:.1f} h)")
+
+
+def chain_lines(c) -> list[str]:
+    out = []
+    r = c.result
+    if c.ep is not None:
+        out.append("  " + dr_ep_text((r.dr_lat_deg, r.dr_lon_deg), c.ep) + "  at the fix time")
+    if c.set_drift is not None:
+        out.append("  current      " + set_drift_text(c.set_drift))
+    out += [f"  note: {n}" for n in c.notes]
     return out

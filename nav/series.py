@@ -160,7 +160,7 @@ def _averaged(rows, specs) -> list[SightRow]:
         rows_text = ", ".join(str(rows[i].row) for i in used)
         out.append(replace(p, hs_text=format_dm(p.hs_deg, decimals=2), dr_given=False,
                            note=f"average of rows {rows_text}",
-                           cells={"averaged_from": rows_text.replace(" ", "")}))
+                           cells={**p.cells, "averaged_from": rows_text.replace(" ", "")}))
     return out
 
 

@@ -182,3 +182,31 @@ def test_cli_series_json_contract(tmp_path, capsys):
     text = capsys.readouterr().out
     assert "3.0\u2032 high" in text and "CAUTION" in text
 
+
+
+def test_cli_fix_with_runs_averaged(tmp_path, capsys):
+    # Greylag at dusk, 36°N 15°W: four Dubhe shots (the third 3′ high), then Procyon and Hamal;
+    # the truth is astropy's altitudes there (tests/sight_truth.py).
+    from geographiclib.geodesic import Geodesic
+
+    from nav.units import NMI_M
+
+    t0 = np.datetime64("2026-03-21T19:30:00", "us")
+    lines = ["utc,body,hs,dr_lat,dr_lon"]
+    for k, (star, m, plus) in enumerate((("Dubhe", 0, 0), ("Dubhe", 1, 0), ("Dubhe", 2, 3.0),
+                                         ("Dubhe", 3, 0), ("Procyon", 5, 0), ("Hamal", 6, 0))):
+        t = t0 + np.timedelta64(m * 60, "s")
+        h = hs_from_true(true_alt_az(star, np.array([t]), [36.0], [-15.0])[0])[0] + plus * ARCMIN_DEG
+        lines.append(f"{iso(t)},{star},{h:.7f}" + (",36.08,-15.1" if k == 0 else ",,"))
+    path = tmp_path / "dusk.csv"
+    path.write_text("\n".join(lines) + "\n")
+    assert main(["fix", str(path), "--average-runs", "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["fix"]["n_sights"] == 3 and doc["runs"][0]["sights"][2]["flagged"]
+    miss = Geodesic.WGS84.Inverse(36.0, -15.0, doc["fix"]["lat_deg"], doc["fix"]["lon_deg"])["s12"]
+    assert miss / NMI_M < 0.2
+    assert main(["fix", str(path), "--json"]) == 0              # the blunder left in
+    plain = json.loads(capsys.readouterr().out)
+    miss_plain = Geodesic.WGS84.Inverse(36.0, -15.0, plain["fix"]["lat_deg"],
+                                        plain["fix"]["lon_deg"])["s12"] / NMI_M
+    assert miss_plain > miss / NMI_M

@@ -175,6 +175,9 @@ def run_sight(st, req) -> None:
                f"`show {e.id}`")
         return
     show_reduction(st, e)
+    from .checks_cmds import after_sight
+
+    after_sight(st, e)          # issue 10: the run this sight completes, checked
 
 
 def _answer_time(st, text: str):
@@ -258,11 +261,25 @@ def run_fix(st, req) -> None:
                                 "the last fix; a fix needs two or more (or name them)",
                                 field="sights", example="fix e0004 e0005 e0007")
         st.say(f"from the sights not used by a fix yet: {' '.join(ids)}")
+    from .checks_cmds import after_fix, fix_ids_with_averages
+
+    ids = fix_ids_with_averages(st, ids)   # issue 10: an averaged sight, only when agreed
     result, entries = st.passage.fix_from(ids)
     fix = result.fix
-    lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg)
+    bias_lines = []
+    if req.args.get("bias"):                    # issue 10: with one shared altitude error
+        from ..commands.fix_extras import with_bias
+        from ..render_checks import bias_lines as _bias_lines
+
+        fix, _, _, bf = with_bias(result, 0.95, "")
+        bias_lines = _bias_lines(bf)
+    lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg) + bias_lines
     e = st.append(fix_entry(fix, [x.id for x in entries]))
     st.say(*lines)
+    first = min(parse_utc(x["utc"]) for x in entries)
+    if fix.kind == "running fix" and st.passage.currents_in_force(first, fix.utc):
+        st.say("  the earlier lines were advanced along the EP track (the current in force)")
+    after_fix(st, e.id)
     st.say(f"logged {e.id}: {fix.kind} from {' '.join(x.id for x in entries)}",
            *textwrap.wrap(CAUTION, 78))
 
@@ -300,6 +317,9 @@ def run_where(st, req) -> None:
     st.say(f"Where at {req.time.explain}:",
            f"  position     {format_lat(w.lat_deg)}  {format_lon(w.lon_deg)}",
            f"  basis        {w.describe()}" + (f" (anchor {w.anchor.entry_id})"))
+    from .checks_cmds import where_lines
+
+    st.say(*where_lines(st, req.time.utc))
     if w.course_deg is not None and w.speed_kn:
         st.say(f"  course       {w.course_deg:05.1f}°, speed {w.speed_kn:g} kn")
     if hours > 12:

@@ -138,6 +138,8 @@ def parse_sight(args, line, ctx) -> Request:
 
 
 def parse_fix(args, line, ctx) -> Request:
+    bias = bool(args) and args[-1].text.lower() == "bias"     # issue 10: `fix ... bias`
+    args = args[:-1] if bias else args
     ids = [_entry_id(a.text, ctx, "sights", kinds=("sight",)) for a in args]
     if len(set(ids)) != len(ids):
         raise NavInputError("a sight is named twice", field="sights", example="fix e0004 e0005")
@@ -145,7 +147,7 @@ def parse_fix(args, line, ctx) -> Request:
         if ctx.lookup(sid) is None:
             raise NavInputError(f"{sid} is struck; it cannot go into a fix", field="sights",
                                 example="the ids of sights that stand")
-    return Request("fix", args={"ids": ids})
+    return Request("fix", args={"ids": ids, "bias": bias})
 
 
 def parse_where(args, line, ctx) -> Request:

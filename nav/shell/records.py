@@ -39,6 +39,13 @@ def entry_summary(e) -> str:
         return f"corrects {d['target']}: {d['reason']}"
     if e.kind == "repair":
         return f"torn line {d['torn_line']} set aside in {d['side_file']}"
+    if e.kind == "current":
+        return (f"current set {d['set_deg']:05.1f}\u00b0, drift {d['drift_kn']:g} kn from "
+                f"{d['utc'][11:16]} ({d.get('source', 'entered')})")
+    if e.kind == "watch_check":
+        from .times import watch_text
+
+        return f"watch {watch_text(d['watch_error_s'])} against the {d['reference']}"
     return ""
 
 
@@ -204,8 +211,13 @@ def run_plot(st, req) -> None:
              for t, lat, lon, b in st.passage.track_points()]
     fixes, _ = points_from_log(st.log)
     out = Path(path) if path else _next_to_log(st, "-passage.png")
-    plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out)
-    st.say(f"passage plot written to {out}")
+    from .checks_cmds import ep_track
+
+    ep = ep_track(st.passage, track)          # issue 10: the EP track beside the DR's
+    plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out,
+                 **({"reference_track": ep, "reference_label": "EP track (DR + current)"}
+                    if ep else {}))
+    st.say(f"passage plot written to {out}" + (", with the EP track" if ep else ""))
 
 
 def _write_new(path: Path, text: str) -> None:

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 from ..errors import NavInputError
-from . import handlers, meridian_cmds, records
+from . import checks_cmds, handlers, meridian_cmds, records
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
                     parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
                     parse_noon, parse_note, parse_plain, parse_plot, parse_set, parse_show,
@@ -71,12 +71,15 @@ COMMANDS_LIST = (
              "the reduction is worked from the DR at the sight's time"),
             ("sight Vega 34 12.3 at 22:55:00", "sight Sun 52 08.4 limb upper zt 11:42:05",
              "sight Rigil Kentaurus 18 44.0 at 2026-06-14T22:58:30Z note low, hazy")),
-    Command("fix", "fix [SIGHT-ID ...]",
+    Command("fix", "fix [SIGHT-ID ...] [bias]",
             "fix or running fix from sights (default: those not used by a fix yet)",
             parse_fix, handlers.run_fix, (), "sight",
             ("earlier sights are advanced along the DR track to the time of the last one",
-             "the fix is logged with its sights, error ellipse and warnings"),
-            ("fix", "fix e0004 e0005 e0007")),
+             "the fix is logged with its sights, error ellipse and warnings",
+             "bias: also estimate one altitude error shared by all the sights (index error, "
+             "height of eye, abnormal dip or refraction); needs bodies all round the horizon",
+             "after a fix, the set and drift since the previous fix is shown"),
+            ("fix", "fix e0004 e0005 e0007", "fix bias")),
     Command("where", f"where [{TIME}]", "where the vessel is, and on what basis",
             parse_where, handlers.run_where, ("at", "zt"), None, (), ("where", "where at 23:30")),
     Command("noon", "noon [DATE]",
@@ -108,6 +111,30 @@ COMMANDS_LIST = (
              "the timing is the weak point: 1 min of time is 15′ of longitude",
              "log: append the longitude as a note (a line of position, not a fix)"),
             ("longitude at 13:41:36", "longitude zt 11:41:48 log")),
+    Command("current", f"current [SET DRIFT [{TIME}] [note TEXT] | apply]",
+            "a current from a time on (EP = DR + current); `current` alone shows DR and EP",
+            checks_cmds.parse_current, checks_cmds.run_current, ("at", "zt", "note"), None,
+            ("SET: degrees true, the direction the water flows toward; DRIFT: knots",
+             "in force from its time on, like a course change; `current 0 0` ends it",
+             "apply: the set and drift between the last two fixes, from the latest fix on",
+             "running fixes then advance the earlier lines along the EP track, and say so"),
+            ("current 210 0.8 at 18:00", "current apply", "current")),
+    Command("average", "average [SIGHT-ID ...]",
+            "log the averaged sight of a run (3+ shots of one body in 15 min)",
+            checks_cmds.parse_average, checks_cmds.run_average, (), "sight",
+            ("each shot is compared with the altitude change predicted at the DR; a shot "
+             "departing from the rest is flagged and left out of the average",
+             "the averaged sight is a new entry naming its sources; nothing is rewritten",
+             "a fix from the run's sights asks before it uses the average in their place"),
+            ("average", "average e0004 e0005 e0006")),
+    Command("watch", "watch [READING at TIME [by signal|gps|reference] [note TEXT]]",
+            "log a comparison of the watch with a reference; `watch` alone: error and rate",
+            checks_cmds.parse_watch, checks_cmds.run_watch, ("at", "by", "note"), None,
+            ("READING: the watch's face (zone time, as `zt` reads it) at the reference instant",
+             "the daily rate is fitted by least squares from two or more comparisons; sights "
+             "timed `zt ...` then take error + rate × days, and say so",
+             "a rate that changes suddenly between comparisons is warned of"),
+            ("watch 12:00:04 at 12:00:00 by signal", "watch")),
     Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
             parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
             ("almanac Sun at 12:00:00",)),
