@@ -146,3 +146,17 @@ def test_shell_fix_bias(tmp_path):
     fix = [e for e in load_log(tmp_path / "p.jsonl").effective_entries() if e.kind == "fix"][-1]
     assert _miss_nmi(fix["lat_deg"], fix["lon_deg"]) < 0.1
     log.close()
+
+
+def test_import_keeps_the_current_and_the_fix_label(tmp_path):
+    csv = tmp_path / "night.csv"
+    csv.write_text("fix,utc,body,hs,dr_lat,dr_lon,course_deg,speed_kn,set_deg,drift_kn\n"
+                   "dusk,2026-03-21T19:30:00Z,Dubhe,40 40.0,36 00.0 N,015 00.0 W,090,6,180,1.0\n"
+                   "dusk,2026-03-21T19:31:00Z,Procyon,54 50.0,,,,,,\n")
+    st, log = _state(tmp_path)
+    run_lines(st, f"import {csv}")
+    entries = load_log(tmp_path / "p.jsonl").effective_entries()
+    cur = [e for e in entries if e.kind == "current"]
+    assert len(cur) == 1 and cur[0]["set_deg"] == 180.0 and cur[0]["drift_kn"] == 1.0
+    assert all("fix 'dusk'" in e["note"] for e in entries if e.kind == "sight")
+    log.close()

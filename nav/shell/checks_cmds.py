@@ -118,10 +118,7 @@ def run_current(st, req) -> None:
     st.say(f"logged {e.id}: " + ("no current from " if ended else
                                  f"current set {req.entry['set_deg']:05.1f}\u00b0, drift "
                                  f"{req.entry['drift_kn']:g} kn from ") + req.time.explain)
-    try:
-        st.say(*_dr_ep_lines(st, req.time.utc))
-    except NavInputError:
-        pass
+    st.say("  the EP is the DR with this current allowed for from then on (`where`, `current`)")
 
 
 # ---------------------------------------------------------------- hooks
@@ -140,20 +137,29 @@ def where_lines(st, utc) -> list[str]:
 
 
 def ep_track(passage, track) -> list:
-    """The EP at each DR track point where a current is in force (empty when none ever is)."""
+    """The EP track over the span of the DR track: hourly, at every track point and at every
+    change of current (empty when no current is ever in force)."""
     from ..export import ExportPoint
 
-    out = []
-    for p in track:
+    if not track or not passage.currents():
+        return []
+    t0, t1 = track[0].utc, track[-1].utc
+    times = {p.utc for p in track} | {t for t, _ in passage.currents() if t0 <= t <= t1}
+    t = t0
+    while t < t1:
+        times.add(t)
+        t += timedelta(hours=1)
+    out, any_ep = [], False
+    for t in sorted(times):
         try:
-            ep = passage.ep(p.utc)
+            w = passage.where(t)
+            ep = passage.ep(t)
         except NavInputError:
-            ep = None
-        if ep is not None:
-            out.append(ExportPoint(p.utc, ep[0], ep[1], "dr", "EP"))
-        elif out:
-            out.append(p)
-    return out
+            continue
+        any_ep = any_ep or ep is not None
+        lat, lon = ep if ep is not None else (w.lat_deg, w.lon_deg)
+        out.append(ExportPoint(t, lat, lon, "dr", "EP"))
+    return out if any_ep else []
 
 
 def after_fix(st, fix_entry_id: str) -> None:
