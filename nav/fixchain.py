@@ -95,8 +95,10 @@ def _chain(rows, currents, start, notes):
     return out, eps, (t, course, speed, cur)
 
 
-def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95) -> list[ChainFix]:
-    """Every fix of a batch file, in order (see the module docstring)."""
+def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95,
+                reductions=None) -> list[ChainFix]:
+    """Every fix of a batch file, in order (see the module docstring). `reductions`: the rows
+    already reduced from their own DRs, used when the file is one fix (nothing restarted)."""
     rows = tuple(rows)
     currents = row_currents(rows)
     by_row = {id(r): c for r, c in zip(rows, currents)}
@@ -116,8 +118,9 @@ def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95) -> list[C
             last = replace(resolved[-1], dr_lat_deg=eps[-1][0], dr_lon_deg=eps[-1][1])
             runs = [run_between(replace(r, dr_lat_deg=e[0], dr_lon_deg=e[1]), last)
                     for r, e in zip(resolved, eps)]
-        result = fix_from_rows(resolved, confidence=confidence, reductions=reduce_rows(resolved),
-                               runs=runs)
+        red = reductions if (reductions is not None and start is None
+                             and len(group) == len(rows)) else reduce_rows(resolved)
+        result = fix_from_rows(resolved, confidence=confidence, reductions=red, runs=runs)
         along = bool(any_current and result.fix.kind == "running fix")
         if along:
             notes.append("the earlier lines were advanced along the EP track (the current in "

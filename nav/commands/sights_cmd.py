@@ -120,7 +120,7 @@ def run_fix(args) -> int:
     if not (0.0 < args.confidence < 1.0):
         raise NavInputError("--confidence must be between 0 and 1", field="confidence",
                             example="0.95")
-    rows, _ = _reduce(args, _load(args))
+    rows, red = _reduce(args, _load(args))
     if len(rows) < 2:
         raise NavInputError("a fix needs at least two sights", field="file",
                             example="two or more rows of sights")
@@ -128,9 +128,9 @@ def run_fix(args) -> int:
     if getattr(args, "average_runs", False):
         from ..series import check_runs, rows_with_runs_averaged
 
-        runs = check_runs(rows)
-        rows = rows_with_runs_averaged(rows, runs)
-    chain = chain_fixes(rows, confidence=args.confidence)
+        runs = check_runs(rows, red)
+        rows, red = rows_with_runs_averaged(rows, runs), None
+    chain = chain_fixes(rows, confidence=args.confidence, reductions=red)
     if runs and not args.json:
         for r in runs:
             left = [s.row for s in r.shots if s.flagged]

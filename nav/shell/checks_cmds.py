@@ -353,9 +353,13 @@ def run_watch(st, req) -> None:
         return
     sig = (f" \u00b1 {rate.rate_sigma_s_per_day:.2f}" if rate.rate_sigma_s_per_day is not None
            else "")
-    st.say(f"  rate {rate.rate_s_per_day:+.2f}{sig} s/day ({'gaining' if rate.rate_s_per_day > 0 else 'losing'}) "
-           f"from {rate.n_comparisons} comparisons; error now "
-           f"{watch_text(round(rate.error_at(st.now()), 1))}",
+    days = (st.now() - rate.epoch).total_seconds() / 86400.0
+    st.say(f"  rate {rate.rate_s_per_day:+.2f}{sig} s/day "
+           f"({'gaining' if rate.rate_s_per_day > 0 else 'losing'}) from {rate.n_comparisons} "
+           f"comparisons; error now {watch_text(round(rate.error_at(st.now()), 1))}"
+           f" ({days:.1f} d since the last comparison)",
+           *(["  ! more than a week since the last comparison: compare the watch again"]
+             if days > 7 else []),
            "  sights timed `zt ...` take error + rate \u00d7 days since the last comparison",
            *[f"  ! {w}" for w in rate.warnings])
 
