@@ -146,3 +146,16 @@ def test_cli_json_several_fixes(tmp_path, capsys):
     assert main(["fix", str(path)]) == 0
     text = capsys.readouterr().out
     assert "[night]" in text and "set 180" in text
+
+
+def test_example_file_gives_the_planted_current(capsys):
+    # examples/overnight-two-fixes.csv was written from the same truth (astropy altitudes on the
+    # track 090° 6 kn through 180° 1.0 kn), Hs rounded to 0.1′ as read off a sextant.
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parent.parent / "examples" / "overnight-two-fixes.csv"
+    assert main(["fix", str(path), "--json"]) == 0
+    sd = json.loads(capsys.readouterr().out)["fix"]["set_drift"]
+    assert sd["set_deg"] == pytest.approx(SET, abs=3.0)
+    assert sd["drift_kn"] == pytest.approx(DRIFT, abs=0.05)
+    assert sd["since_utc"] == "2026-03-21T19:32:00Z"

@@ -210,3 +210,14 @@ def test_cli_fix_with_runs_averaged(tmp_path, capsys):
     miss_plain = Geodesic.WGS84.Inverse(36.0, -15.0, plain["fix"]["lat_deg"],
                                         plain["fix"]["lon_deg"])["s12"] / NMI_M
     assert miss_plain > miss / NMI_M
+
+
+def test_example_file_flags_the_planted_shot(capsys):
+    # examples/dusk-run.csv: the third Dubhe shot was written 3′ high (astropy truth + 3′)
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parent.parent / "examples" / "dusk-run.csv"
+    assert main(["series", str(path), "--json"]) == 0
+    (run,) = json.loads(capsys.readouterr().out)["runs"]
+    assert [s["row"] for s in run["sights"] if s["flagged"]] == [3]
+    assert run["sights"][2]["residual_arcmin"] == pytest.approx(3.0, abs=0.15)
