@@ -90,6 +90,10 @@ def test_current_where_ep_and_set_drift_after_a_fix(tmp_path):
                     at("Alioth", 247), at("Denebola", 248), at("Procyon", 249), at("Capella", 250),
                     "fix")
     assert "current      set 180" in out and "`current apply`" in out
+    fixes = [e for e in load_log(tmp_path / "p.jsonl").effective_entries() if e.kind == "fix"]
+    assert "set_drift" not in fixes[0].data
+    sd = fixes[1]["set_drift"]                   # the log carries it, as the batch JSON does
+    assert sd["set_deg"] == pytest.approx(180.0, abs=1.0) and sd["since_utc"] == fixes[0]["utc"]
     out = run_lines(st, "current apply", "current")
     assert "logged e0012: current set 18" in out
     assert "EP " in out and "DR " in out

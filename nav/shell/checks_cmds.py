@@ -61,29 +61,32 @@ def _dr_ep_lines(st, utc) -> list[str]:
     return [f"  {dr_ep_text((w.lat_deg, w.lon_deg), ep)}" + ("" if ep else "  (no current in force)")]
 
 
-def latest_set_drift(passage):
-    """(SetDrift, fix entry) between the last two fixes, or None."""
+def set_drift_since_last_fix(passage, fix):
+    """The set and drift a new fix reveals: its displacement from the DR run since the previous
+    fix (None when the DR at its time does not run from a fix, or too little time passed)."""
     from ..current import set_drift
 
-    fixes = sorted(passage.fix_entries, key=lambda e: e["utc"])
-    if len(fixes) < 2:
+    try:
+        w = passage.where(fix.utc)
+    except NavInputError:
         return None
-    prev, last = fixes[-2], fixes[-1]
-    from ..timekeeping import parse_utc
+    if w.anchor.basis not in ("fix", "running fix") or w.anchor.utc >= fix.utc:
+        return None
+    try:
+        return set_drift(fix.lat_deg, fix.lon_deg, w.lat_deg, w.lon_deg, w.anchor.utc, fix.utc)
+    except NavInputError:
+        return None
 
-    t0, t1 = parse_utc(prev["utc"]), parse_utc(last["utc"])
-    dr = passage_before_fix(passage, last).where(t1)
-    return set_drift(last["lat_deg"], last["lon_deg"], dr.lat_deg, dr.lon_deg, t0, t1), last
 
-
-def passage_before_fix(passage, fix_entry):
-    from ..passage import passage_before
-
-    return passage_before(passage, fix_entry.id)
+def latest_set_drift(passage):
+    """(set_drift dict, fix entry) of the latest fix, or None when it carries none."""
+    fixes = sorted(passage.fix_entries, key=lambda e: e["utc"])
+    if not fixes or "set_drift" not in fixes[-1].data:
+        return None
+    return fixes[-1]["set_drift"], fixes[-1]
 
 
 def run_current(st, req) -> None:
-    from ..render_checks import set_drift_text
     from ..timekeeping import parse_utc
 
     if req.args.get("show"):
@@ -102,16 +105,17 @@ def run_current(st, req) -> None:
     if req.args.get("apply"):
         found = latest_set_drift(st.passage)
         if found is None:
-            raise NavInputError("a set and drift needs two fixes", field="current",
+            raise NavInputError("the latest fix measured no set and drift (it needs a fix "
+                                "before it, and the DR run from that fix)", field="current",
                                 example="current 210 0.8 at 18:00")
         sd, fix_e = found
         entry = {"kind": "current", "utc": fix_e["utc"], "time_text": "from the fix",
-                 "set": f"{sd.set_deg:.1f}", "set_deg": round(sd.set_deg, 1) % 360.0,
-                 "drift": f"{sd.drift_kn:.2f}", "drift_kn": round(sd.drift_kn, 2),
-                 "source": f"measured: fix {fix_e.id} against its DR"}
+                 "set": f"{sd['set_deg']:.1f}", "set_deg": round(sd["set_deg"], 1) % 360.0,
+                 "drift": f"{sd['drift_kn']:.2f}", "drift_kn": round(sd["drift_kn"], 2),
+                 "source": f"measured: fix {fix_e.id} against the DR since {sd['since_utc']}"}
         e = st.append(entry)
-        st.say(f"logged {e.id}: current {set_drift_text(sd)}, applied from "
-               f"{parse_utc(fix_e['utc']):%H:%M} UTC on")
+        st.say(f"logged {e.id}: current set {entry['set_deg']:05.1f}\u00b0, drift "
+               f"{entry['drift_kn']:g} kn, from {parse_utc(fix_e['utc']):%H:%M} UTC on")
         return
     e = st.append(req.entry)
     ended = req.entry["drift_kn"] == 0
@@ -162,18 +166,12 @@ def ep_track(passage, track) -> list:
     return out if any_ep else []
 
 
-def after_fix(st, fix_entry_id: str) -> None:
+def after_fix(st, sd) -> None:
     """Show the set and drift since the previous fix and offer to apply it."""
     from ..render_checks import set_drift_text
 
-    try:
-        found = latest_set_drift(st.passage)
-    except NavInputError as err:
-        st.say(f"  current      not measured: {err.reason}")
+    if sd is None:
         return
-    if found is None or found[1].id != fix_entry_id:
-        return
-    sd, _ = found
     st.say(f"  current      {set_drift_text(sd)}",
            "  to allow for it from this fix on: `current apply` (logged)")
 

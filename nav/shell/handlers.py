@@ -274,12 +274,19 @@ def run_fix(st, req) -> None:
         fix, _, _, bf = with_bias(result, 0.95, "")
         bias_lines = _bias_lines(bf)
     lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg) + bias_lines
-    e = st.append(fix_entry(fix, [x.id for x in entries]))
+    from .checks_cmds import set_drift_since_last_fix
+
+    entry = fix_entry(fix, [x.id for x in entries])
+    sd = set_drift_since_last_fix(st.passage, fix)     # issue 10: the current since the last fix
+    if sd is not None:
+        entry["set_drift"] = {"set_deg": round(sd.set_deg, 2) % 360.0,
+                              "drift_kn": round(sd.drift_kn, 3), "since_utc": sd.since_utc}
+    e = st.append(entry)
     st.say(*lines)
     first = min(parse_utc(x["utc"]) for x in entries)
     if fix.kind == "running fix" and st.passage.currents_in_force(first, fix.utc):
         st.say("  the earlier lines were advanced along the EP track (the current in force)")
-    after_fix(st, e.id)
+    after_fix(st, sd)
     st.say(f"logged {e.id}: {fix.kind} from {' '.join(x.id for x in entries)}",
            *textwrap.wrap(CAUTION, 78))
 
