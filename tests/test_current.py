@@ -159,3 +159,14 @@ def test_example_file_gives_the_planted_current(capsys):
     assert sd["set_deg"] == pytest.approx(SET, abs=3.0)
     assert sd["drift_kn"] == pytest.approx(DRIFT, abs=0.05)
     assert sd["since_utc"] == "2026-03-21T19:32:00Z"
+
+
+def test_cli_sheets_one_per_fix_with_the_ep(tmp_path, capsys):
+    path = tmp_path / "sanderling.csv"
+    path.write_text(_file(current=True))
+    png = tmp_path / "sheet.png"
+    assert main(["fix", str(path), "--plot", str(png)]) == 0
+    out = capsys.readouterr().out
+    assert (tmp_path / "sheet-dusk.png").stat().st_size > 10_000
+    assert (tmp_path / "sheet-night.png").stat().st_size > 10_000
+    assert "EP " in out and "DR " in out            # side by side at the fix time

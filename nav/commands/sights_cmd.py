@@ -176,7 +176,8 @@ def _one_fix(args, c, n_fixes: int) -> dict:
         from ..plotting import plot_fix_sheet
 
         plot_fix_sheet(fix, lops, dr=(result.dr_lat_deg, result.dr_lon_deg), title=title,
-                       path=plot)
+                       path=plot, **({"known": c.ep, "known_label": "EP (DR + current)"}
+                                     if c.ep else {}))
     if args.json:
         sights = []
         for i, row in enumerate(result.rows):

@@ -187,7 +187,8 @@ def run_plot(st, req) -> None:
         if fx is None:
             raise NavInputError(f"{fid} is struck", field="id", example="plot fix e0009")
         try:
-            result, _ = passage_before(st.passage, fid).fix_from(list(fx["sight_ids"]))
+            before = passage_before(st.passage, fid)
+            result, _ = before.fix_from(list(fx["sight_ids"]))
         except NavInputError as err:
             raise NavInputError(f"fix {fid} cannot be drawn again: {err.reason}", field="id",
                                 example=f"strike {fid} REASON, then fix") from None
@@ -195,9 +196,14 @@ def run_plot(st, req) -> None:
         from ..plotting import plot_fix_sheet
 
         kind = result.fix.kind
+        try:
+            ep = before.ep(result.fix.utc)        # issue 10: the EP beside the DR
+        except NavInputError:
+            ep = None
         plot_fix_sheet(result.fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
                        title=f"{st.vessel}: {kind} {result.fix.utc:%Y-%m-%d %H:%M} UTC ({fid})",
-                       path=out)
+                       path=out, **({"known": ep, "known_label": "EP (DR + current)"}
+                                    if ep else {}))
         _, moved = rhumb_line(fx["lat_deg"], fx["lon_deg"], result.fix.lat_deg,
                               result.fix.lon_deg)
         if float(moved) > 0.05:
