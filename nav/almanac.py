@@ -195,10 +195,8 @@ def _solar_body(instants: Instants, name: str) -> BodyAlmanac:
         hp_arcmin=hp, sd_arcmin=sd, magnitude=mag)
 
 
-@functools.lru_cache(maxsize=None)
-def _star_vectors():
-    """Catalogue positions (AU) and space velocities (AU/day) of every star, shape (3, N)."""
-    recs = _stars().star_table()
+def _vectors_of(recs):
+    """Catalogue positions (AU) and space velocities (AU/day) of star records, shape (3, N)."""
     ra = np.radians([r.ra_deg for r in recs])
     dec = np.radians([r.dec_deg for r in recs])
     plx_mas = np.array([r.parallax_mas for r in recs])
@@ -209,15 +207,22 @@ def _star_vectors():
     u = np.array([cd * cr, cd * sr, sd])
     e_ra = np.array([-sr, cr, np.zeros_like(cr)])
     e_dec = np.array([-sd * cr, -sd * sr, cd])
-    pos = u * dist_au
-    vel = (e_ra * pm_ra + e_dec * pm_dec) * dist_au
+    return u * dist_au, (e_ra * pm_ra + e_dec * pm_dec) * dist_au
+
+
+@functools.lru_cache(maxsize=None)
+def _star_vectors():
+    """Catalogue positions (AU) and space velocities (AU/day) of every star, shape (3, N)."""
+    recs = _stars().star_table()
+    pos, vel = _vectors_of(recs)
     index = {r.name: i for i, r in enumerate(recs)}
     return pos, vel, index, np.array([r.hp_mag for r in recs])
 
 
-def _star_directions(instants: Instants, idx: np.ndarray) -> np.ndarray:
-    """Apparent geocentric unit vectors (ICRS axes) of the stars `idx`, shape (3, k[, n])."""
-    pos, vel, _, _ = _star_vectors()
+def _star_directions(instants: Instants, idx: np.ndarray, vectors=None) -> np.ndarray:
+    """Apparent geocentric unit vectors (ICRS axes) of the stars `idx`, shape (3, k[, n]);
+    `vectors`: (pos, vel) of other records than the navigational stars'."""
+    pos, vel = _star_vectors()[:2] if vectors is None else vectors
     pos, vel = pos[:, idx], vel[:, idx]
     t_tdb = np.asarray(instants.time.tdb)
     e_pos = instants.earth.xyz.au                   # (3[, n])
@@ -267,6 +272,16 @@ def _stars_almanac(instants: Instants, names: list[str]) -> list[BodyAlmanac]:
             ra_deg=ra_k, sha_deg=norm360(360.0 - ra_k), gha_aries_deg=gha_aries, distance_km=None,
             hp_arcmin=None, sd_arcmin=None, magnitude=float(mags[index[name]])))
     return out
+
+
+def catalogue_places(records, t):
+    """Apparent GHA, Dec and SHA (degrees, arrays over `records`) of any star records (e.g. the
+    bright stars of :func:`nav.stars.bright_star_table`) at one instant, as for the 58."""
+    instants = t if isinstance(t, Instants) else Instants(t)
+    vectors = _vectors_of(records)
+    ra, dec = _ra_dec_of_date(instants, _star_directions(instants, np.arange(len(records)),
+                                                         vectors))
+    return norm360(instants.gha_aries_deg - ra), dec, norm360(360.0 - ra)
 
 
 def almanac(bodies, t, field: str = "utc") -> list[BodyAlmanac]:

@@ -182,13 +182,15 @@ def parse_altitude(text: str, field: str = "hs") -> float:
     return parse_angle(text, field, min_deg=-1.0, max_deg=90.0, example="34.205, 34 12.3 or 34°12.3'")
 
 
-def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, example: str) -> float:
+def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, example: str,
+                       kind: str | None = None) -> float:
     if not isinstance(text, str):
         text = str(text)
     s = text.strip()
     m = _HEMI_RE.match(s)
     if not s or not m:
-        raise NavInputError(f"'{text}' is not a {field_kind(pos)}", field=field, example=example)
+        raise NavInputError(f"'{text}' is not a {kind or field_kind(pos)}", field=field,
+                            example=example)
     h1, body, h2 = m.group("h1"), m.group("body"), m.group("h2")
     if h1 and h2:
         raise NavInputError(f"'{text}' names the hemisphere twice", field=field, example=example)
@@ -221,6 +223,13 @@ def parse_lat(text: str, field: str = "lat") -> float:
 def parse_lon(text: str, field: str = "lon") -> float:
     """Longitude in signed degrees (east +) from ``032 07.1 W``, ``32°07.1′E``, ``-32.118``."""
     return _parse_signed_hemi(text, field, "E", "W", 180.0, "032 07.1 W or -32.118")
+
+
+def parse_east_west(text: str, field: str = "variation") -> float:
+    """A variation, deviation or compass error in signed degrees (east +): ``9 W``, ``3.5E``,
+    ``2°30′ W``, ``-9``; at most 180°."""
+    return _parse_signed_hemi(text, field, "E", "W", 180.0, "9 W, 3.5 E or -9 (east +)",
+                              kind="value east or west")
 
 
 _HEIGHT_RE = re.compile(rf"^\s*(?P<v>{_NUM})\s*(?P<u>m|metres?|meters?|ft|feet|foot|')?\s*$", re.I)

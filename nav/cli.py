@@ -20,6 +20,12 @@ COMMAND_MODULES = (
     "nav.commands.series_cmd",
     "nav.commands.passage_cmd",
     "nav.commands.noon_cmd",
+    "nav.commands.sky_cmd",
+    "nav.commands.meridian_cmd",
+    "nav.commands.compass_cmd",
+    "nav.commands.identify_cmd",
+    "nav.commands.plan_cmd",
+    "nav.commands.equal_cmd",
     "nav.commands.shell_cmd",
 )
 

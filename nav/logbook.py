@@ -58,7 +58,8 @@ except ImportError:  # pragma: no cover - Windows: no advisory lock; one writer 
 
 FORMAT, FORMAT_VERSION = "nav-passage-log", 1
 MAX_LOG_BYTES = 50 * 1024 * 1024      # ~200 000 sights: far more than any passage
-SUPERSEDABLE = ("setting", "dr", "sight", "fix", "note", "current", "watch_check")
+SUPERSEDABLE = ("setting", "dr", "sight", "fix", "note", "compass_check", "current",
+                "watch_check")
 _TORN_ID = re.compile(rb'"id"\s*:\s*"e(\d{4,9})"')
 CLOCK_EXAMPLE = "clock=lambda: datetime(2026, 6, 19, 8, 0, tzinfo=timezone.utc)"
 

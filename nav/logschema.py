@@ -88,6 +88,20 @@ SCHEMA: dict[str, dict[str, Field]] = {
             "warnings": Field("texts"), "note": _NOTE,
             "set_drift": Field("object")},      # issue 10: {set_deg, drift_kn, since_utc}
     "note": {"text": Field("note", True, max_len=MAX_NOTE), "utc": Field("utc")},
+    # A compass check (issue 9): a body's true bearing against the compass, with the ship's
+    # head by that compass, so the deviation can be listed per heading over the passage.
+    "compass_check": {"utc": Field("utc", True), "time_text": Field("text"),
+                      "body": Field("text", True, max_len=40),
+                      "method": Field("enum", True, choices=("azimuth", "amplitude")),
+                      "horizon": Field("enum", choices=("celestial", "visible")),
+                      "compass_bearing_deg": Field("num", True, 0, 360, hi_open=True),
+                      "heading_deg": Field("num", True, 0, 360, hi_open=True),
+                      "zn_deg": Field("num", True, 0, 360, hi_open=True),
+                      "compass_error_deg": Field("num", True, -180, 180),
+                      "variation_deg": Field("num", lo=-180, hi=180),
+                      "deviation_deg": Field("num", lo=-180, hi=180),
+                      "lat_deg": Field("num", True, -90, 90),
+                      "lon_deg": Field("num", True, -180, 180), "note": _NOTE},
     # issue 10: a current in force from a time on (entered, or applied from a fix), and a
     # comparison of a watch with a reference time
     "current": {"utc": Field("utc", True), "time_text": Field("text"),

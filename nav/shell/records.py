@@ -33,6 +33,10 @@ def entry_summary(e) -> str:
     if e.kind == "note":
         text = " ".join(d["text"].split())
         return text if len(text) <= 60 else text[:57] + "..."
+    if e.kind == "compass_check":
+        from .sky_cmds import compass_summary
+
+        return compass_summary(d)
     if e.kind == "strike":
         return f"strikes {d['target']}: {d['reason']}"
     if e.kind == "correct":
@@ -50,7 +54,7 @@ def entry_summary(e) -> str:
 
 
 def _marks(st, e) -> str:
-    if e.kind not in ("setting", "dr", "sight", "fix", "note"):
+    if e.kind not in ("setting", "dr", "sight", "fix", "note", "compass_check"):
         return ""
     chain = st.log.history_of(e.id)[1:]
     marks = [f"corrected by {c.id}" for c in chain if c.kind == "correct"]

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 from ..errors import NavInputError
-from . import checks_cmds, handlers, meridian_cmds, records
+from . import checks_cmds, handlers, meridian_cmds, records, sky_cmds
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
                     parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
                     parse_noon, parse_note, parse_plain, parse_plot, parse_set, parse_show,
@@ -135,6 +135,63 @@ COMMANDS_LIST = (
              "timed `zt ...` then take error + rate × days, and say so",
              "a rate that changes suddenly between comparisons is warned of"),
             ("watch 12:00:04 at 12:00:00 by signal", "watch")),
+    Command("sky", "sky [DATE]",
+            "twilight, sunrise and sunset, moonrise and moonset, meridian passages, along the DR",
+            sky_cmds.parse_sky, sky_cmds.run_sky, (), None,
+            ("DATE: the ship's date in zone time (default as for noon)",
+             "each event is worked at the DR the vessel will have then, along the legs logged",
+             "zone: the one set with `set zone`, else the DR longitude's",
+             "sunrise/sunset: upper limb on the sea horizon (centre −50′ true); twilight: "
+             "centre at −6° (civil) and −12° (nautical)"),
+            ("sky", "sky 2026-06-21")),
+    Command("meridian", "meridian BODY [DATE]",
+            "meridian passage of any body along the DR: time, Hc, Hs to preset, latitude rule",
+            sky_cmds.parse_meridian, sky_cmds.run_meridian, (), "body",
+            ("the upper transit at the DR the vessel will have then, along the legs logged",
+             "Hs to preset: with the height of eye, index error, temperature and pressure in "
+             "force (lower limb for the Sun and Moon)"),
+            ("meridian Jupiter", "meridian Vega 2026-06-21")),
+    Command("compass", f"compass BODY BEARING heading H [var V] [amplitude [visible]] "
+                       f"({TIME}) [note TEXT]",
+            "log a compass check: compass error (and deviation) by azimuth or amplitude",
+            sky_cmds.parse_compass, sky_cmds.run_compass, sky_cmds.COMPASS_WORDS, "body",
+            ("BEARING: the body's bearing by the compass; heading: the ship's head by the same "
+             "compass (for the deviation table)",
+             "by azimuth: the body's true Zn at the time from the DR; amplitude: the body "
+             "rising or setting, sin A = sin Dec / cos lat, centre on the celestial horizon; "
+             "visible: centre on the visible horizon, corrected",
+             "error: true = compass + error, E +; var: variation (9 W, 3.5 E): deviation = "
+             "error − variation",
+             "`deviations` lists the deviation found on each heading"),
+            ("compass Sun 055 heading 245 var 9 W amplitude at 06:31:10",
+             "compass Vega 080 heading 250 at 23:30:00")),
+    Command("deviations", "deviations", "the deviation found on each compass heading so far",
+            sky_cmds.parse_deviations, sky_cmds.run_deviations, (), None, (), ("deviations",)),
+    Command("identify", f"identify HS ZN ({TIME})",
+            "which body was it: candidates ranked by the fit of Hc and Zn at the DR",
+            sky_cmds.parse_identify, sky_cmds.run_identify, ("at", "zt"), None,
+            ("HS: the sextant altitude; ZN: the true bearing (a hand-bearing compass, "
+             "corrected: a few degrees are enough)",
+             "candidates: the 58 stars, the planets, the Moon and the other stars to "
+             "magnitude 3.5; with height of eye and IE in force",
+             "when none fits: the Dec and SHA of the point observed"),
+            ("identify 51 00.0 076 at 23:30:00",)),
+    Command("plan", "plan morning|evening [DATE] [count N]",
+            "which bodies to shoot at twilight: Hc, Zn, magnitude, Hs to preset, a spread set",
+            sky_cmds.parse_plan, sky_cmds.run_plan, (), None,
+            ("the time: the Sun's centre at −6° (civil twilight), along the DR and legs logged",
+             "candidates: the 58 stars, planets and Moon between 15° and 70°; flags for a "
+             "body near the Moon and a Moon without a bright lower limb",
+             "the set (count 3–7, default 5): azimuth spread first, brightness second"),
+            ("plan evening", "plan morning 2026-06-22 count 6")),
+    Command("equal-altitudes", "equal-altitudes TIME1 TIME2 [log]",
+            "longitude by equal altitudes of the Sun before and after noon (beside longitude)",
+            sky_cmds.parse_equal, sky_cmds.run_equal, (), None,
+            ("TIME1, TIME2: the UTC of the forenoon and afternoon sights at the same sextant "
+             "altitude (a bare time is UTC, as `at`)",
+             "corrected for the change of the Sun's Dec and for the run along the leg in force",
+             "log: append the longitude as a note (a line of position, not a fix)"),
+            ("equal-altitudes 11:00:00 17:20:00", "equal-altitudes 11:00:00 17:20:00 log")),
     Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
             parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
             ("almanac Sun at 12:00:00",)),
