@@ -19,6 +19,7 @@ COMMAND_MODULES = (
     "nav.commands.sights_cmd",
     "nav.commands.series_cmd",
     "nav.commands.passage_cmd",
+    "nav.commands.review_cmd",
     "nav.commands.noon_cmd",
     "nav.commands.sky_cmd",
     "nav.commands.meridian_cmd",

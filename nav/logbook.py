@@ -1,30 +1,36 @@
 """The passage log on disk: one JSON Lines file per passage, append-only, schema-checked.
 
-Format ``nav-passage-log``, version 1 (our own; summarised in sight_logs/README.md):
+Format ``nav-passage-log``, version 2 (our own; summarised in sight_logs/README.md):
 
 - UTF-8, one JSON object per line, each line ending in ``\\n``; keys in a fixed order
-  (``id``, ``kind``, ``logged_utc``, then the fields of the kind in the order of :data:`SCHEMA`).
+  (``id``, ``kind``, ``logged_utc``, then the fields of the kind in the order of :data:`SCHEMA`,
+  then ``check``).
 - Line 1 is the ``passage`` header. Every entry has ``id`` (``e0001``, ``e0002`` ... increasing
   through the file), ``kind`` and ``logged_utc`` (when it was written, ISO 8601 ``Z``).
+- Every line carries ``check``, a hash chain (see :mod:`nav.logschema`): an edited, deleted,
+  moved or inserted line is found on load and named by its line number.
 - A value as the user typed it is kept beside its parsed value: ``hs`` ("34 12.3") beside
-  ``hs_deg`` (34.205). The log stores and loads; it parses no input and does no navigation.
+  ``hs_deg`` (34.205). On load the text is read again with nav's parser and must give the
+  stored number (:func:`nav.logschema.typed_mismatch`).
 - Nothing is ever rewritten. A ``strike`` or ``correct`` entry supersedes an earlier entry by its
   id; the *effective* view applies them, :meth:`LoadedLog.history_of` keeps everything.
-- The schema (fields, kinds, checks) and the line codec live in :mod:`nav.logschema`.
-- The one exception: a torn last line (a power cut mid-write) is copied to a side file
-  ``<name>.jsonl.torn-<UTC stamp>``; the copy is fsynced and read back, and only then is the main
-  file truncated to its last good newline; a ``repair`` entry then records where the bytes went,
-  and no later id reuses an id seen in torn bytes. :func:`load_log` never changes a file;
-  :meth:`PassageLog.open` (opening for writing) does this repair.
+- An import (more than one entry appended at once) is marked on its first entry: ``batch``
+  says how many entries were written together. A file that ends before the last of them holds
+  an import that was cut off: none of its entries counts; the tail is set aside like a torn
+  line.
+- The one exception to "never rewritten": a torn last line (a power cut mid-write), or the
+  tail of a cut-off import, is copied to a side file ``<name>.jsonl.torn-<UTC stamp>``; the copy
+  is fsynced and read back, and only then is the main file truncated; a ``repair`` entry then
+  records where the bytes went, and no later id reuses an id seen in them. :func:`load_log`
+  never changes a file; :meth:`PassageLog.open` (opening for writing) does this repair.
 - Strict by default: a bad line anywhere but at the end refuses the file, naming its line and
-  field. ``load_log(path, strict=False)`` reads the good lines and lists the problems (for an
-  instructor reading a damaged log); such a log is never appended to.
-- ``logged_utc`` comes from the log's clock: the wall clock, or a callable given to
-  :func:`new_log` / :meth:`PassageLog.open` (``clock=``) that returns an aware datetime (a
-  replayed or generated passage, a test); the time is written in UTC, rounded to the second.
-- Durability: an append writes its line(s) with one ``write`` on an ``O_APPEND`` descriptor and
-  fsyncs before it returns; a new file (the log, a side file) is written under a temporary name,
-  fsynced, hard-linked into place (never overwriting) and its directory fsynced.
+  field. ``load_log(path, strict=False)`` reads the good lines and lists the problems (for
+  review: ``nav review LOG``); such a log is never appended to.
+- Version 1 logs (written before lines carried a check) load as they are: their lines are not
+  checked, and the entries appended to them later are (from the first checked line on, every
+  line must carry its check). A ``note`` problem says so.
+- Writing (``PassageLog``, ``new_log``) lives in :mod:`nav.logwriter` and is importable from
+  here; the file rules (regular files only, no FIFO) in :mod:`nav.files`.
 
 Content is data only: never evaluated; strings are length-limited and may not hold control or
 invisible bidirectional characters; a file over :data:`MAX_LOG_BYTES` is refused unread.
@@ -32,36 +38,26 @@ invisible bidirectional characters; a file over :data:`MAX_LOG_BYTES` is refused
 
 from __future__ import annotations
 
-import errno
-import glob
-import hashlib
 import os
 import re
-import secrets
 from dataclasses import dataclass
-from datetime import datetime
 from pathlib import Path
 from types import MappingProxyType
-from typing import Any, Callable, Iterable, Mapping
+from typing import Any, Mapping
 
-from . import __version__
 from .errors import NavError, NavInputError
-from .timekeeping import UTC, format_utc
+from .timekeeping import parse_utc
 from .logschema import (  # SCHEMA and COMMON are re-exported: part of this module's API
-    COMMON, MAX_LINE_BYTES, SCHEMA, _check_entry, _decode_line, _encode, _normalise,
+    BATCH, CHECK, COMMON, MAX_LINE_BYTES, META_KINDS, SCHEMA, _check_entry, _decode_line, chain_check,
+    typed_mismatch,
 )
 
-try:
-    import fcntl
-except ImportError:  # pragma: no cover - Windows: no advisory lock; one writer at a time
-    fcntl = None
-
-FORMAT, FORMAT_VERSION = "nav-passage-log", 1
+FORMAT, FORMAT_VERSION = "nav-passage-log", 2
+READ_VERSIONS = (1, 2)
 MAX_LOG_BYTES = 50 * 1024 * 1024      # ~200 000 sights: far more than any passage
 SUPERSEDABLE = ("setting", "dr", "sight", "fix", "note", "compass_check", "current",
                 "watch_check")
 _TORN_ID = re.compile(rb'"id"\s*:\s*"e(\d{4,9})"')
-CLOCK_EXAMPLE = "clock=lambda: datetime(2026, 6, 19, 8, 0, tzinfo=timezone.utc)"
 
 
 class LogFormatError(NavInputError):
@@ -84,12 +80,23 @@ class LogWriteError(NavError):
     """An append that did not complete: the entry must be treated as NOT logged."""
 
 
+class DuplicateSightError(NavInputError):
+    """A sight identical in body, UTC and Hs to one that stands in the log: one observation
+    counts once. ``duplicates`` pairs each refused entry's place with the id it repeats."""
+
+    def __init__(self, message: str, duplicates: list[tuple[str, str]]):
+        super().__init__(message, field="sight",
+                         example=f"strike {duplicates[0][1]} REASON first, if that one is wrong")
+        self.duplicates = duplicates
+
+
 @dataclass(frozen=True)
 class LogProblem:
     line: int
     field: str | None
     message: str
     severity: str = "error"       # "error" refuses strict loading; "warning" is a torn tail
+                                  # or a cut-off import; "note" is said and refuses nothing
 
     def __str__(self) -> str:
         return f"line {self.line}" + (f", field '{self.field}'" if self.field else "") \
@@ -102,6 +109,7 @@ class TornTail:
     offset: int                   # byte offset just after the last good newline
     data: bytes
     reason: str
+    batch: bool = False           # the tail of an import that was cut off
 
 
 @dataclass(frozen=True)
@@ -118,6 +126,8 @@ class Entry:
     line: int
     data: Mapping[str, Any]
     revised_by: str | None = None
+    check: str | None = None      # the line's check (hash chain); not part of data
+    batch: int | None = None      # on the first entry of an import: how many were written at once
 
     def __getitem__(self, name: str) -> Any:
         return self.data[name]
@@ -156,6 +166,10 @@ class LoadedLog:
         self._chain: dict[str, list[Entry]] = {}
         self._struck: dict[str, Entry] = {}
         self._max_num = self._id_floor = self._lines = 0
+        self.version: int = FORMAT_VERSION
+        self._check = ""                       # the check of the last good line
+        self._checked_from: int | None = None  # first line that carried a check
+        self._batch: tuple | None = None       # (batch entry, entries still to come)
 
     @property
     def header(self) -> Entry:
@@ -192,7 +206,7 @@ class LoadedLog:
         """
         out = []
         for e in self.entries:
-            if kind is not None and e.kind != kind or e.kind in ("passage", "strike", "correct"):
+            if kind is not None and e.kind != kind or e.kind in META_KINDS:
                 continue
             cur = e if e.kind == "repair" else self.effective_by_id(e.id)
             if cur is not None:
@@ -218,6 +232,12 @@ class LoadedLog:
             return "id", f"{eid} comes after e{self._max_num:04d}: ids must increase"
         if kind == "passage" and self.entries:
             return "kind", "a second passage header: a log holds one passage"
+        if kind == "passage" and BATCH in o:
+            return BATCH, "the passage header is not part of an import"
+        if self._batch and BATCH in o:
+            b = self._batch[0]
+            return BATCH, (f"an import begins inside the import that {b.id} (line {b.line}) "
+                           f"began, which still has {self._batch[1]} entries to come")
         if kind in ("strike", "correct"):
             t = o["target"]
             target = self._by_id.get(t)
@@ -244,10 +264,18 @@ class LoadedLog:
         return None
 
     def _add(self, o: dict, line: int) -> Entry:
-        e = Entry(o["id"], o["kind"], o["logged_utc"], line, _freeze(o))
+        e = Entry(o["id"], o["kind"], o["logged_utc"], line,
+                  _freeze({k: v for k, v in o.items() if k not in (CHECK, BATCH)}),
+                  check=o.get(CHECK), batch=o.get(BATCH))
         self.entries.append(e)
         self._by_id[e.id] = e
         self._max_num, self._lines = int(e.id[1:]), line
+        self._check = o[CHECK] if CHECK in o else chain_check(self._check, o)
+        if self._batch:
+            left = self._batch[1] - 1
+            self._batch = (self._batch[0], left) if left else None
+        if e.batch:
+            self._batch = (e, e.batch - 1)
         if e.kind in ("strike", "correct"):
             self._chain.setdefault(e["target"], []).append(e)
             if e.kind == "strike":
@@ -261,8 +289,38 @@ class LoadedLog:
         bad = (None, msg) if msg else (_check_entry(obj) or self._admit(obj))
         if bad:
             self.problems.append(LogProblem(line, bad[0], bad[1]))
-        else:
-            self._add(obj, line)
+            if obj is not None and isinstance(obj.get(CHECK), str):
+                self._check = obj[CHECK]       # the next line is checked against this one
+            return
+        self._verify(obj, line)
+        self._add(obj, line)
+
+    def _verify(self, o: Mapping, line: int) -> None:
+        """The check and the typed values of a well-formed line (problems, never refusals)."""
+        if CHECK in o:
+            self._checked_from = self._checked_from or line
+            if o[CHECK] != chain_check(self._check, o):
+                gap = int(o["id"][1:]) - self._max_num - 1 if self._max_num else 0
+                hint = (f"; ids jump from e{self._max_num:04d} to {o['id']}" if gap > 0 else "")
+                self.problems.append(LogProblem(line, CHECK, (
+                    "the entry's check does not match: this line was changed, or a line before "
+                    f"it was deleted or moved, after it was written{hint}")))
+        elif self.version >= 2 or self._checked_from:
+            self.problems.append(LogProblem(line, CHECK, (
+                "is missing: every line of this log carries its check "
+                + (f"(from line {self._checked_from} on)" if self.version < 2 else ""))))
+        kind = o["kind"]
+        for fields in ((o, kind),) + (((o["replacement"], self._by_id[o["target"]].kind),)
+                                      if kind == "correct" else ()):
+            bad = typed_mismatch(fields[1], fields[0])
+            if bad:
+                name = ("replacement." if fields[0] is not o else "") + bad[0]
+                self.problems.append(LogProblem(line, name, bad[1], bad[2]))
+
+    # -- one observation counts once
+    def sight_index(self) -> dict:
+        """Sight key (body, instant, Hs) -> id, over the sights that stand."""
+        return {k: e.id for e in self.effective_entries("sight") if (k := sight_key(e.data))}
 
     def _state(self) -> dict:
         """A copy of the index (PassageLog stages a batch on it and keeps it if all is well)."""
@@ -273,21 +331,38 @@ class LoadedLog:
         return s
 
 
-def _read_bytes(path: Path, max_bytes: int) -> bytes:
+def sight_key(o: Mapping) -> tuple | None:
+    """What makes two sights one observation: the body, the instant and Hs (to 1e-9°)."""
     try:
-        with open(path, "rb") as f:
+        return (o["body"], parse_utc(o["utc"]), round(float(o["hs_deg"]), 9))
+    except (KeyError, TypeError, ValueError):
+        return None
+
+
+def _read_bytes(path: Path, max_bytes: int) -> bytes:
+    from .files import open_input
+
+    if not os.path.lexists(path):
+        raise LogFormatError("no such passage log", path=path)
+    try:
+        fd = open_input(path, field="log", example="sight_logs/passage.jsonl")
+    except NavInputError as err:
+        raise LogFormatError(err.reason, path=None, field="log") from None
+    try:
+        with os.fdopen(fd, "rb", closefd=False) as f:
             size = os.fstat(f.fileno()).st_size
             data = f.read(max_bytes + 1) if size <= max_bytes else b""
     except OSError as err:
-        raise LogFormatError("no such passage log" if isinstance(err, FileNotFoundError)
-                             else f"cannot be read ({err.strerror})", path=path) from None
+        raise LogFormatError(f"cannot be read ({err.strerror})", path=path) from None
+    finally:
+        os.close(fd)
     if size > max_bytes or len(data) > max_bytes:
         raise LogFormatError(f"is {max(size, len(data)):,} bytes, over the {max_bytes / 2**20:g} MB "
                              "limit of a passage log; it was not read", path=path)
     return data
 
 
-def _parse(log: LoadedLog, data: bytes, strict: bool) -> LoadedLog:
+def _parse(log: LoadedLog, data: bytes, strict: bool, _inner: bool = False) -> LoadedLog:
     path, end = log.path, data.rfind(b"\n") + 1
     lines, torn = data[:end].split(b"\n")[:-1], None
     if end < len(data):
@@ -308,22 +383,45 @@ def _parse(log: LoadedLog, data: bytes, strict: bool) -> LoadedLog:
         raise LogFormatError(f"is not a nav passage log (line 1 is {msg or 'not its header'})",
                              path=path, line=1, example=f'{{"kind": "passage", "format": "{FORMAT}"')
     version = obj.get("format_version")
-    if version != FORMAT_VERSION or isinstance(version, bool):
-        newer = "written by a newer nav; " if isinstance(version, int) and version > 1 else ""
-        raise LogFormatError(f"format_version {str(version)[:20]}: {newer}this nav reads version "
-                             f"{FORMAT_VERSION}", path=path, line=1, field="format_version")
+    if version not in READ_VERSIONS or isinstance(version, bool):
+        newer = "written by a newer nav; " if isinstance(version, int) and \
+            version > FORMAT_VERSION else ""
+        raise LogFormatError(f"format_version {str(version)[:20]}: {newer}this nav reads versions "
+                             + " and ".join(map(str, READ_VERSIONS)), path=path, line=1,
+                             field="format_version")
+    log.version = version
+    offset = 0
     for i, raw in enumerate(lines, start=1):
+        if log._batch is None:
+            batch_at = (i, offset)
         log._take_line(head if i == 1 else raw, i)
-        if log.problems and i == 1:
+        offset += len(raw) + 1
+        if log.problems and i == 1 and log.problems[0].severity == "error":
             p = log.problems[0]
             raise LogFormatError(p.message, path=path, line=1, field=p.field)
+    if log._batch is not None:         # an import cut off: none of its entries counts
+        b, left = log._batch
+        line, start = batch_at
+        src = b.get("source") or b.get("note") or ""
+        cut = TornTail(line, start, data[start:], (
+            f"an import of {b.batch} entries (from {b.id}" + (f", {src[:80]}" if src else "")
+            + f") was cut off after {b.batch - left} of them; none of them counts"), True)
+        fresh = _parse(LoadedLog(path), data[:start], strict=False, _inner=True)
+        log.__dict__.update(fresh.__dict__)
+        torn = cut
+    if version < 2 and not _inner:
+        log.problems.append(LogProblem(1, "format_version", (
+            "format version 1, written before lines carried a check: "
+            + ("none of its lines can be checked for edits" if log._checked_from is None else
+               f"lines before {log._checked_from} cannot be checked for edits")), "note"))
     if torn:
         log.torn_tail = torn
         log._id_floor = max([log._id_floor, *map(int, _TORN_ID.findall(torn.data))])
-        log.problems.append(LogProblem(torn.line, None, f"torn last line ({len(torn.data)} bytes):"
+        what = "the tail of a cut-off import" if torn.batch else "torn last line"
+        log.problems.append(LogProblem(torn.line, None, f"{what} ({len(torn.data)} bytes):"
                                        f" {torn.reason}; it is set aside when the log is opened "
                                        "for writing", "warning"))
-    if strict and log.errors:
+    if strict and log.errors and not _inner:
         first, more = log.errors[0], len(log.errors) - 1
         raise LogFormatError(first.message + (f" ({more} more problems)" if more else "")
                              + "; the log was not opened and nothing was changed",
@@ -339,262 +437,12 @@ def load_log(path: Path | str, *, strict: bool = True, max_bytes: int = MAX_LOG_
     return _parse(LoadedLog(path), _read_bytes(path, max_bytes), strict)
 
 
-# ---------------------------------------------------------------- writing
-
-def _write_fully(fd: int, data: bytes) -> None:
-    """One os.write (more only if the kernel writes short). The crash test tears lines here."""
-    view = memoryview(data)
-    while view:
-        view = view[os.write(fd, view):]
 
 
-def _fsync_dir(directory: Path) -> None:
-    try:
-        dfd = os.open(directory, os.O_RDONLY | getattr(os, "O_DIRECTORY", 0))
-    except OSError:  # pragma: no cover - a platform that cannot open a directory (Windows)
-        return
-    try:
-        os.fsync(dfd)
-    except OSError as err:  # pragma: no cover - a file system that cannot sync a directory
-        if err.errno not in (errno.EINVAL, errno.ENOTSUP):
-            raise
-    finally:
-        os.close(dfd)
+def __getattr__(name: str):
+    """The writer (PassageLog, new_log) lives in nav.logwriter; importable from here too."""
+    if name in ("PassageLog", "new_log", "CLOCK_EXAMPLE"):
+        from . import logwriter
 
-
-def _write_new_file(candidates: list[Path], data: bytes) -> Path:
-    """Write data under the first free candidate name, complete or not at all: a temporary file
-    is written and fsynced, hard-linked under the name (a link never replaces a file), removed,
-    and the directory fsynced."""
-    tmp = candidates[0].with_name(f".{candidates[0].name}.{secrets.token_hex(4)}.tmp")
-    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_CLOEXEC", 0), 0o644)
-    try:
-        _write_fully(fd, data)
-        os.fsync(fd)
-    finally:
-        os.close(fd)
-    try:
-        for target in candidates:
-            try:
-                os.link(tmp, target)
-                break
-            except FileExistsError:
-                continue
-        else:
-            raise FileExistsError(candidates[-1])
-    finally:
-        os.unlink(tmp)
-    _fsync_dir(tmp.parent)
-    return target
-
-
-def _wall_clock() -> datetime:
-    return datetime.now(UTC)
-
-
-def _checked_clock(clock: Callable[[], datetime] | None) -> Callable[[], datetime]:
-    if clock is None:
-        return _wall_clock
-    if not callable(clock):
-        raise NavInputError(f"the log's clock must be callable, not a {type(clock).__name__}",
-                            field="clock", example=CLOCK_EXAMPLE)
-    return clock
-
-
-def _logged_utc(clock: Callable[[], datetime]) -> str:
-    """The clock's time as a logged_utc: an aware datetime, written in UTC to the second."""
-    t = clock()
-    if not isinstance(t, datetime) or t.utcoffset() is None:
-        what = "a time without a time zone" if isinstance(t, datetime) else f"a {type(t).__name__}"
-        raise NavInputError(f"the log's clock gave {what}; it must give an aware UTC datetime",
-                            field="clock", example=CLOCK_EXAMPLE)
-    return format_utc(t)
-
-
-def new_log(path: Path | str, vessel: str, title: str, *,
-            clock: Callable[[], datetime] | None = None, passage_uid: str | None = None,
-            software: str | None = None, max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
-    """Create a passage log holding its header, and open it. An existing file is never replaced.
-
-    ``clock`` (default: the wall clock) gives every logged_utc, see the module doc;
-    ``passage_uid`` (default: random) is 16 lower-case hex digits; ``software`` names the writer.
-    """
-    path, clock = Path(path), _checked_clock(clock)
-    header = {"id": "e0001", "kind": "passage", "logged_utc": _logged_utc(clock),
-              "format": FORMAT, "format_version": FORMAT_VERSION,
-              "passage_uid": secrets.token_hex(8) if passage_uid is None else passage_uid,
-              "vessel": vessel, "title": title,
-              "software": f"nav {__version__}" if software is None else software}
-    bad = _check_entry(header)
-    if bad:
-        raise NavInputError(bad[1], field=bad[0], example="0123456789abcdef" if bad[0] ==
-                            "passage_uid" else "vessel 'Kittiwake', title 'Azores run'")
-    exists = NavInputError(f"{path} already exists; a passage log is never overwritten",
-                           field="path", example=str(path.with_name(path.stem + "-2.jsonl")))
-    if path.exists():
-        raise exists
-    try:
-        if not path.parent.is_dir():
-            path.parent.mkdir(parents=True)
-            _fsync_dir(path.parent.parent)
-        _write_new_file([path], _encode(header))
-    except OSError as err:
-        if isinstance(err, FileExistsError) and path.exists():
-            raise exists from None
-        raise LogWriteError(f"{path}: the log could not be created ({err.strerror})") from None
-    return PassageLog.open(path, clock=clock, max_bytes=max_bytes)
-
-
-class PassageLog(LoadedLog):
-    """A passage log open for appending; every append is on disk (fsynced) when it returns.
-
-    One writer at a time: the open log holds an exclusive advisory lock (flock) until closed, and
-    a second writer is refused, so ids stay unique and increasing. Readers (load_log) need no lock.
-    """
-
-    def __init__(self, path: Path, fd: int, max_bytes: int, clock: Callable[[], datetime]):
-        super().__init__(path)
-        self._fd, self._size, self._max_bytes, self._broken = fd, 0, max_bytes, None
-        self._clock = clock
-
-    @classmethod
-    def open(cls, path: Path | str, *, clock: Callable[[], datetime] | None = None,
-             max_bytes: int = MAX_LOG_BYTES) -> "PassageLog":
-        """Open for appending: strict loading, then a torn tail set aside (see the module doc).
-        ``clock`` (default: the wall clock) gives every logged_utc this log writes."""
-        path, clock = Path(path), _checked_clock(clock)
-        try:
-            fd = os.open(path, os.O_WRONLY | os.O_APPEND | getattr(os, "O_CLOEXEC", 0))
-        except OSError as err:
-            raise LogFormatError("no such passage log" if isinstance(err, FileNotFoundError)
-                                 else f"cannot be opened for writing ({err.strerror})",
-                                 path=path) from None
-        try:
-            if fcntl is not None:
-                try:
-                    fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
-                except BlockingIOError:
-                    raise LogFormatError("is open for writing in another nav session; close it "
-                                         "there first", path=path) from None
-            self = cls(path, fd, max_bytes, clock)
-            data = _read_bytes(path, max_bytes)
-            _parse(self, data, strict=True)
-            self._size, self._id_floor = len(data), max(self._id_floor, _side_file_floor(path))
-            if self.torn_tail:
-                self._set_aside_torn()
-        except BaseException:
-            os.close(fd)
-            raise
-        return self
-
-    def append(self, entry: Mapping) -> Entry:
-        """Check, write one line, fsync, return the entry as logged. Confirm to the user after."""
-        return self.append_many([entry])[0]
-
-    def append_many(self, entries: Iterable[Mapping]) -> list[Entry]:
-        """Every entry is checked first (one bad entry: nothing is written), then all are
-        written with one write and made durable by one fsync: a batch is confirmed as a whole."""
-        if self._fd is None or self._broken:
-            raise LogWriteError(f"{self.path.name}: " + ("the log is closed" if self._fd is None
-                                                         else self._broken + "; reopen the log"))
-        trial = LoadedLog(self.path)
-        trial.__dict__.update(self._state())
-        lines, added, entries = [], [], list(entries)
-        for n, given in enumerate(entries, 1):
-            where = f" (entry {n} of {len(entries)})" if len(entries) > 1 else ""
-            if not isinstance(given, Mapping):
-                raise NavInputError("an entry must be a mapping of field names to values" + where)
-            o = _normalise(given, "entry")
-            if "id" in o or "logged_utc" in o:
-                raise NavInputError("id and logged_utc are assigned by the log" + where, field="id")
-            o = {"id": trial.next_id(), "logged_utc": _logged_utc(self._clock), **o}
-            bad = _check_entry(o) or trial._admit(o)
-            if bad:
-                raise NavInputError(bad[1] + where, field=bad[0])
-            line = _encode(o, o["kind"] == "correct" and trial.entry_by_id(o["target"]).kind)
-            if len(line) > MAX_LINE_BYTES:
-                raise NavInputError(f"the entry is {len(line):,} bytes as a line; the limit is "
-                                    f"{MAX_LINE_BYTES:,}" + where, field="entry")
-            back = _decode_line(line[:-1])[0]
-            if back != o:  # pragma: no cover - a line that would not read back as written
-                raise NavInputError("the entry does not read back as written" + where)
-            added.append(trial._add(back, trial._lines + 1))
-            lines.append(line)
-        blob = b"".join(lines)
-        if self._size + len(blob) > self._max_bytes:
-            raise NavInputError(f"the log would pass its {self._max_bytes / 2**20:g} MB limit; "
-                                "start a new passage log", field="entry")
-        try:
-            if os.fstat(self._fd).st_size != self._size:
-                self._broken = "the file was changed by something else since it was opened"
-                raise LogWriteError(f"{self.path.name}: {self._broken}; nothing was written; "
-                                    "reopen the log")
-            _write_fully(self._fd, blob)
-            os.fsync(self._fd)
-        except OSError as err:
-            self._broken = f"an append failed ({err.strerror})"
-            raise LogWriteError(f"{self.path.name}: the entry was NOT logged ({err.strerror}); "
-                                "reopen the log") from None
-        self._size += len(blob)
-        self.__dict__.update(trial.__dict__)
-        return added
-
-    def strike(self, target: str, reason: str) -> Entry:
-        return self.append({"kind": "strike", "target": target, "reason": reason})
-
-    def correct(self, target: str, reason: str, changes: Mapping) -> Entry:
-        """Supersede an entry by its current fields with ``changes`` applied (None removes one)."""
-        cur = self.effective_by_id(target)
-        if cur is None:
-            raise NavInputError(f"{target} is not an entry that stands in this log (unknown, "
-                                "struck, or of a kind that cannot be corrected)", field="target")
-        fields = {k: v for k, v in cur.to_dict().items() if k not in COMMON}
-        return self.append({"kind": "correct", "target": target, "reason": reason,
-                            "replacement": {**fields, **changes}})
-
-    def close(self) -> None:
-        if self._fd is not None:
-            os.close(self._fd)          # releases the lock
-            self._fd = None
-
-    def __enter__(self) -> "PassageLog":
-        return self
-
-    def __exit__(self, *exc) -> None:
-        self.close()
-
-    def _set_aside_torn(self) -> None:
-        """Copy the torn tail to a side file (fsynced, read back), then truncate; log a repair."""
-        t = self.torn_tail
-        stamp = re.sub("[-:]", "", _logged_utc(self._clock))
-        try:
-            side = _write_new_file([self.path.with_name(f"{self.path.name}.torn-{stamp}"
-                                                        + (f"-{i}" if i else ""))
-                                    for i in range(100)], t.data)
-            if side.read_bytes() != t.data:  # pragma: no cover - a disk that does not keep data
-                raise OSError(errno.EIO, f"{side.name} does not hold the torn bytes")
-            os.ftruncate(self._fd, t.offset)
-            os.fsync(self._fd)
-        except OSError as err:
-            raise LogWriteError(f"{self.path.name}: its torn last line could not be set aside "
-                                f"({err.strerror}); the log was not opened") from None
-        self._size, self._lines, self.set_aside = t.offset, t.line - 1, side
-        self.problems = [p for p in self.problems if p.severity != "warning"] + [LogProblem(
-            t.line, None, f"torn last line ({len(t.data)} bytes): {t.reason}; set aside in "
-            f"{side.name}", "warning")]
-        self.append({"kind": "repair", "side_file": side.name, "torn_line": t.line,
-                     "torn_bytes": len(t.data), "torn_sha256": hashlib.sha256(t.data).hexdigest(),
-                     "note": t.reason})
-
-
-def _side_file_floor(path: Path) -> int:
-    """The highest id seen in this log's torn-tail side files (no later id reuses it)."""
-    best = 0
-    for side in glob.glob(glob.escape(str(path)) + ".torn-*"):
-        try:
-            with open(side, "rb") as f:
-                best = max([best, *map(int, _TORN_ID.findall(f.read(MAX_LINE_BYTES + 2)))])
-        except OSError as err:
-            raise LogFormatError(f"its side file {Path(side).name} cannot be read "
-                                 f"({err.strerror})", path=path) from None
-    return best
+        return getattr(logwriter, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

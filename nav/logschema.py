@@ -3,6 +3,21 @@ and the codec of one line (values -> JSON, entry -> line in the fixed key order,
 
 Split from :mod:`nav.logbook`, which stores and loads; this module only says what a valid entry
 is and how it is spelt. Every message names the field; the loader adds the line.
+
+A new kind of entry is one more row of :data:`SCHEMA` (its fields, in the order they are
+written); a kind that is bookkeeping rather than navigation is named in :data:`META_KINDS`.
+
+Two fields belong to the line rather than to its kind, and come last: ``batch`` (on the first
+entry of an import: how many entries, itself included, were written together) and ``check``.
+
+The check (format version 2): every line ends with ``"check": "<32 hex digits>"``, the first
+128 bits of SHA-256 over the previous line's check, a newline, and the entry's canonical JSON
+(the object without ``check``, keys sorted, no spaces, UTF-8). The header's previous check is
+empty. It finds an edited, deleted, moved or added line; it is no signature (anyone can
+compute it), so it shows damage and careless editing, not a determined forger.
+
+Typed values: on load, a value as typed (``hs``) is read again with nav's own parser and
+compared with the number stored beside it (``hs_deg``), see :func:`typed_mismatch`.
 """
 
 from __future__ import annotations
@@ -15,14 +30,21 @@ from dataclasses import dataclass
 from datetime import datetime
 from typing import Any, Mapping
 
+import hashlib
+
 from .errors import NavInputError
 from .fields import HORIZONS, LIMBS
+from .units import ARCMIN_DEG
 from .timekeeping import ISO_EXAMPLE, UTC, parse_utc
 
 MAX_LINE_BYTES = 64 * 1024
 MAX_TEXT, MAX_NOTE, MAX_LIST = 200, 4000, 200
 ID_RE = re.compile(r"^e(\d{4,9})$")
 COMMON = ("id", "kind", "logged_utc")
+CHECK, CHECK_HEX = "check", 32
+BATCH, MAX_BATCH = "batch", 100_000
+# kinds that are bookkeeping of the log itself, not navigation: left out of the effective view
+META_KINDS = ("passage", "strike", "correct")
 POSITION_BASES = ("dr", "ep", "gps", "visual", "other")
 _UTC_Z = re.compile(r"^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}(?:\.\d{1,6})?Z$")
 _BAD_TEXT = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\ud800-\udfff]")
@@ -117,7 +139,7 @@ SCHEMA: dict[str, dict[str, Field]] = {
                 "replacement": Field("object", True)},
     "repair": {"side_file": Field("text", True, max_len=300),
                "torn_line": Field("int", True, 1, 10**9),
-               "torn_bytes": Field("int", True, 1, MAX_LINE_BYTES + 1),
+               "torn_bytes": Field("int", True, 1, MAX_LINE_BYTES * (MAX_BATCH + 1)),
                "torn_sha256": Field("hex", True, max_len=64), "note": _NOTE},
 }
 _RAW_FIELDS = {n: f.raw_of for spec in SCHEMA.values() for n, f in spec.items() if f.raw_of}
@@ -209,13 +231,15 @@ def _check_entry(o: Mapping, replacement_of: str | None = None) -> tuple[str | N
         kind = o["kind"]
         if not isinstance(kind, str) or kind not in SCHEMA:
             return "kind", f"unknown kind {str(kind)[:40]!r}; known kinds: " + ", ".join(SCHEMA)
-        for name, f in (("id", Field("id")), ("logged_utc", Field("utc"))):
+        for name, f in (("id", Field("id")), ("logged_utc", Field("utc")),
+                        *(((CHECK, Field("hex", max_len=CHECK_HEX)),) if CHECK in o else ()),
+                        *(((BATCH, Field("int", lo=2, hi=MAX_BATCH)),) if BATCH in o else ())):
             msg = _check_value(f, o[name])
             if msg:
                 return name, msg
     spec = SCHEMA[kind]
     for name in o:
-        if name not in spec and (replacement_of or name not in COMMON):
+        if name not in spec and (replacement_of or name not in (*COMMON, BATCH, CHECK)):
             return str(name)[:40], f"is not a field of a {kind} entry"
     for name, f in spec.items():
         if name not in o:
@@ -254,7 +278,7 @@ def _normalise(v: Any, name: str) -> Any:
 
 def _encode(o: dict, replacement_kind: str | None = None) -> bytes:
     """The line of an entry: fixed key order, UTF-8, no NaN, newline-terminated."""
-    out = {k: o[k] for k in (*COMMON, *SCHEMA[o["kind"]]) if k in o}
+    out = {k: o[k] for k in (*COMMON, *SCHEMA[o["kind"]], BATCH, CHECK) if k in o}
     if replacement_kind:
         out["replacement"] = {k: o["replacement"][k] for k in SCHEMA[replacement_kind]
                               if k in o["replacement"]}
@@ -287,3 +311,73 @@ def _decode_line(raw: bytes) -> tuple[dict | None, str | None]:
     except (ValueError, RecursionError) as err:
         return None, f"not valid JSON ({err})"
     return (obj, None) if isinstance(obj, dict) else (None, "not a JSON object")
+
+
+# ---------------------------------------------------------------- the check (hash chain)
+
+def canonical(o: Mapping) -> bytes:
+    """The entry's content as the check covers it: without ``check``, keys sorted, compact."""
+    return json.dumps({k: v for k, v in o.items() if k != CHECK}, sort_keys=True,
+                      ensure_ascii=False, allow_nan=False, separators=(",", ":")).encode("utf-8")
+
+
+def chain_check(previous: str, o: Mapping) -> str:
+    """The check of an entry that follows a line whose check is ``previous`` ("" for line 1)."""
+    return hashlib.sha256(previous.encode("ascii") + b"\n" + canonical(o)).hexdigest()[:CHECK_HEX]
+
+
+# ---------------------------------------------------------------- typed against parsed
+
+def _typed_parsers() -> dict:
+    """raw field -> function(text) -> the number the log stores beside it (nav's own parsers)."""
+    from .angles import parse_angle, parse_height_m, parse_lat, parse_lon, parse_number
+
+    def hours(text):
+        from .timekeeping import parse_zone_description
+        return parse_zone_description(text).total_seconds() / 3600.0
+
+    def seconds(text):
+        from .timekeeping import parse_watch_error
+        return parse_watch_error(text).total_seconds()
+
+    def number(text):
+        return parse_number(text, "value")
+
+    return {"hs": lambda t: parse_angle(t, "hs", min_deg=-1.0, max_deg=180.0),
+            "lat": parse_lat, "lon": parse_lon, "dr_lat": parse_lat, "dr_lon": parse_lon,
+            "eye_height": parse_height_m, "index_error": number, "temperature": number,
+            "pressure": number, "course": lambda t: number(t) % 360.0, "speed": number,
+            "zone_description": hours, "watch_error": seconds}
+
+
+_PARSERS: dict = {}
+# How far a stored number may be from its typed text read again: a hundredth of a tenth of an
+# arcminute for angles (a number written by hand to 4 decimals of a degree still agrees; one
+# changed digit in the third decimal does not), a thousandth of the unit for the rest.
+TYPED_TOLERANCE_DEG = 0.005 * ARCMIN_DEG
+TYPED_TOLERANCE_OTHER = 1e-3
+
+
+def typed_mismatch(kind: str, o: Mapping) -> tuple[str, str, str] | None:
+    """(field, message, severity) where a value as typed does not give the number stored
+    beside it: an "error" when it reads as another number (the number or the text was changed
+    after logging), a "note" when today's parser no longer reads the text at all."""
+    if not _PARSERS:
+        _PARSERS.update(_typed_parsers())
+    for raw, f in SCHEMA.get(kind, {}).items():
+        if not f.raw_of or raw not in o or f.raw_of not in o or raw not in _PARSERS:
+            continue
+        text, stored = o[raw], o[f.raw_of]
+        try:
+            value = float(_PARSERS[raw](text))
+        except (NavInputError, ValueError, OverflowError) as err:
+            reason = getattr(err, "reason", str(err))
+            return (raw, f"'{text[:40]}' as typed no longer reads ({reason}); the stored "
+                    f"{f.raw_of} {stored} is kept", "note")
+        tol = TYPED_TOLERANCE_DEG if f.raw_of.endswith("_deg") else TYPED_TOLERANCE_OTHER
+        # an artificial horizon's reading is the double altitude: stored as read, or halved
+        halves = raw == "hs" and o.get("horizon") == "artificial"
+        if not abs(value - stored) <= tol and not (halves and abs(value / 2 - stored) <= tol):
+            return (f.raw_of, f"is {stored}, but '{text[:40]}' as typed reads {value:.10g}: "
+                    "one of them was changed after it was logged", "error")
+    return None

@@ -51,25 +51,31 @@ def _intercept_text(p_nmi: float) -> str:
     return f"{abs(v):.1f} {'T' if v >= 0 else 'A'}"
 
 
-def _check_path(path):
-    """(Path, format) for `path`, or None; only .png and .pdf are accepted."""
+def _check_path(path, replace: bool = False, replace_hint: str | None = None):
+    """(Path, format, replace, hint) for `path`, or None; only .png and .pdf are accepted, and
+    the file rules of :mod:`nav.files` are checked before anything is drawn."""
+    from .files import REPLACE_OPTION, check_output
+
     if path is None:
         return None
     p = Path(path)
     if p.suffix.lower().lstrip(".") not in SAVE_FORMATS:
         raise NavInputError(f"'{p.name}': a plot is saved as PNG or PDF, chosen by the extension",
                             field="path", example="sheet.png or sheet.pdf")
-    return p, p.suffix.lower().lstrip(".")
+    hint = replace_hint or REPLACE_OPTION
+    check_output(p, replace=replace, field="path", example="sheet.png", replace_hint=hint)
+    return p, p.suffix.lower().lstrip("."), replace, hint
 
 
 def _save(fig, saved, title: str) -> None:
+    """Written by the rules of nav.files: a temporary file, then the name; never a device."""
+    from .files import write_output
+
     if saved is not None:
-        (p, ext), key = saved, ("Description" if saved[1] == "png" else "Subject")
-        try:
-            fig.savefig(p, format=ext, dpi=DPI, metadata={"Title": title, key: CAUTION})
-        except OSError as exc:
-            raise NavInputError(f"cannot write '{p}': {exc.strerror or exc}", field="path",
-                                example="a file in an existing, writable folder") from None
+        (p, ext, replace, hint), key = saved, ("Description" if saved[1] == "png" else "Subject")
+        write_output(p, lambda f: fig.savefig(f, format=ext, dpi=DPI,
+                                              metadata={"Title": title, key: CAUTION}),
+                     replace=replace, field="path", example="sheet.png", replace_hint=hint)
 
 
 def _fix_marker(ax, placer, x, y, colour=FIX_C, running=False, size=11):
@@ -203,7 +209,7 @@ def _label_lops(placer, sheet, lops, geo, lines, flags, colours, xlim, ylim):
 
 def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, known=None,
                    known_label: str = KEY["known"]["label"], title: str = "",
-                   path=None) -> "Figure":
+                   path=None, replace: bool = False, replace_hint: str | None = None) -> "Figure":
     """A plotting sheet for one fix: DR, APs, azimuths, intercepts, LOPs, the fix, its ellipse.
 
     `lops` as :func:`nav.fix.lop_at` gives them (advanced ones carry ``advanced_nmi``); a LOP
@@ -212,7 +218,8 @@ def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, known=None,
     fix time) or ``(lat_deg, lon_deg, utc)``. `known`: a position known independently of the
     sights (a true position, in the same forms as `dr`), drawn as a star, named `known_label` in
     the key, with the fix's distance from it in the summary. With `path` the figure is also
-    saved, PNG or PDF by the extension. Returns the Figure.
+    saved, PNG or PDF by the extension, by the rules of :mod:`nav.files` (an existing file only
+    with `replace`; `replace_hint` names how the user asks for it). Returns the Figure.
     """
     if not isinstance(fix, Fix):
         raise NavInputError("fix must be the result of nav.fix.solve_fix", field="fix")
@@ -220,7 +227,8 @@ def plot_fix_sheet(fix: Fix, lops: Sequence[LOP], *, dr=None, known=None,
     if not lops or not all(isinstance(lp, LOP) for lp in lops):
         raise NavInputError("lops must be one or more LOPs (nav.fix.lop_at)", field="lops",
                             example="[lop_at(s, ap_lat, ap_lon, fix.utc) for s in sights]")
-    saved, drp, flags = _check_path(path), _as_dr(dr, fix), _lop_flags(fix, lops)
+    saved, drp, flags = (_check_path(path, replace, replace_hint), _as_dr(dr, fix),
+                         _lop_flags(fix, lops))
     kp = _as_position(known, fix, "known", "other", "known position")
     colours = [WARN if bad else LINE_COLOURS[i % len(LINE_COLOURS)] for i, bad in enumerate(flags)]
     e = fix.ellipse
@@ -342,7 +350,7 @@ def _unwrapped(points, start_x: float) -> list[float]:
 
 def plot_passage(track, fixes, *, reference_track=None,
                  reference_label: str = KEY["ref"]["label"], title: str = "",
-                 path=None) -> "Figure":
+                 path=None, replace: bool = False, replace_hint: str | None = None) -> "Figure":
     """The DR track (points joined in time order), the fixes and running fixes, the distance run.
 
     `track`: :class:`nav.export.ExportPoint` (or dicts of its fields); `fixes`: ExportPoints or
@@ -351,7 +359,8 @@ def plot_passage(track, fixes, *, reference_track=None,
     dash-dotted line named `reference_label` in the key. A fix's error ellipse is drawn only
     where it shows beyond the fix's marker at the plot's scale (then the key names it); else the
     summary says that the ellipses are too small to show. With `path` the figure is also saved,
-    PNG or PDF by the extension. Returns the Figure.
+    PNG or PDF by the extension, by the rules of :mod:`nav.files` (as for plot_fix_sheet).
+    Returns the Figure.
     """
     track = sorted((as_point(p, f"track[{i}]") for i, p in enumerate(track or ())),
                    key=lambda p: p.utc)
@@ -361,7 +370,7 @@ def plot_passage(track, fixes, *, reference_track=None,
     if not track and not fixes:
         raise NavInputError("nothing to plot: no track points and no fixes", field="track",
                             example="ExportPoint(utc, lat_deg, lon_deg, 'dr', '')")
-    saved, every = _check_path(path), track + fixes
+    saved, every = _check_path(path, replace, replace_hint), track + fixes
 
     def outlines(sheet, xs):
         return [sheet.ellipse(x, p.lat_deg, p.ellipse_semi_major_nmi, p.ellipse_semi_minor_nmi,

@@ -83,12 +83,9 @@ def _decode(data: bytes, source: str) -> str:
 
 def read_sight_file(path: str, *, skip_bad_rows: bool = False) -> SightFile:
     """Read a batch sight file from disk (see :func:`parse_sight_csv`)."""
-    try:
-        with open(path, "rb") as fh:
-            data = fh.read(MAX_FILE_BYTES + 1)
-    except OSError as err:
-        raise NavInputError(f"cannot read {path}: {err.strerror}", field="file",
-                            example="sights.csv") from None
+    from .files import read_input      # regular files only: a FIFO is refused, not read
+
+    data = read_input(path, MAX_FILE_BYTES, field="file", example="sights.csv")
     return parse_sight_csv(_decode(data, path), skip_bad_rows=skip_bad_rows)
 
 

@@ -1,6 +1,6 @@
 """Helper for tests/test_logbook_crash.py: append entries to a passage log until killed.
 
-    python crash_writer.py LOG START [--tear]
+    python crash_writer.py LOG START [--tear] [--batch N]
 
 Opens LOG for writing (which sets aside a torn tail), prints ``ready``, then appends entries made
 by :func:`make_entry` from sequence number START on, printing ``<id> <seq>`` for each one only
@@ -10,6 +10,12 @@ after ``append()`` has returned (that is, after the fsync).
 that writes the line a few bytes at a time with pauses, so that a kill lands mid-line. (A kill
 cannot tear a real append: the kernel finishes a small write before the process dies; a power
 cut can.) The test data are invented.
+
+``--batch N`` stands in for ``nav import``: entries are appended N at a time with
+``append_many`` (one import), and ``<first id> <first seq>`` is printed after each batch returned.
+
+:func:`run_forked` runs the same writer in a forked child of the test process, for tests that
+kill many writers (no interpreter start-up per kill).
 """
 
 from __future__ import annotations
@@ -41,25 +47,73 @@ def make_entry(seq: int) -> dict:
     return {"kind": "setting", "eye_height": f"{2 + seq % 3} m", "eye_height_m": 2 + seq % 3}
 
 
+TEAR_CHUNK = 7            # bytes per write when tearing
+
+
 def _torn_write(fd: int, data: bytes) -> None:
-    for i in range(0, len(data), 7):
-        os.write(fd, data[i:i + 7])
+    for i in range(0, len(data), TEAR_CHUNK):
+        os.write(fd, data[i:i + TEAR_CHUNK])
         time.sleep(0.0005)
+
+
+def append_until_killed(path, seq: int, tear: bool, say, batch: int | None = None) -> None:
+    """Open the log, say "ready", then append (one entry, or `batch` at a time) for ever,
+    saying "<id> <seq>" after each append returned (the first id of a batch)."""
+    from nav import logbook, logwriter
+
+    log = logbook.PassageLog.open(path)
+    if tear:
+        logwriter._write_fully = _torn_write
+    say("ready")
+    while True:
+        if batch:
+            added = log.append_many([make_entry(s) for s in range(seq, seq + batch)])
+            say(f"{added[0].id} {seq}")
+            seq += batch
+        else:
+            say(f"{log.append(make_entry(seq)).id} {seq}")
+            seq += 1
+
+
+def run_forked(path, seq: int, tear: bool, wait_s: float, batch: int | None = None,
+               tear_chunk: int = TEAR_CHUNK) -> list[str]:
+    """Fork a writer (nav is already imported: a kill costs milliseconds, not a start-up), let it
+    append for `wait_s` after it is ready, SIGKILL it; returns the lines it said after "ready"."""
+    global TEAR_CHUNK
+    import signal
+    import traceback
+
+    r, w = os.pipe()
+    pid = os.fork()
+    if pid == 0:  # pragma: no cover - the child: never returns, leaves without pytest's cleanup
+        os.close(r)
+        TEAR_CHUNK = tear_chunk
+        try:
+            append_until_killed(path, seq, tear, lambda t: os.write(w, (t + "\n").encode()),
+                                batch)
+        except BaseException:  # noqa: BLE001 - report anything to the parent
+            os.write(w, ("error " + traceback.format_exc()).encode())
+        os._exit(1)
+    os.close(w)
+    with os.fdopen(r, "rb") as f:
+        first = f.readline()
+        if first != b"ready\n":
+            os.waitpid(pid, 0)
+            raise AssertionError((first + f.read()).decode())
+        time.sleep(wait_s)
+        os.kill(pid, signal.SIGKILL)
+        os.waitpid(pid, 0)
+        rest = f.read().decode()
+    assert "error" not in rest, rest
+    return rest.split("\n")[:-1]
 
 
 def main(argv: list[str]) -> int:
     sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
-    from nav import logbook
-
-    path, seq = argv[0], int(argv[1])
-    log = logbook.PassageLog.open(path)
-    if "--tear" in argv:
-        logbook._write_fully = _torn_write
-    print("ready", flush=True)
-    while True:
-        entry = log.append(make_entry(seq))
-        print(entry.id, seq, flush=True)
-        seq += 1
+    batch = int(argv[argv.index("--batch") + 1]) if "--batch" in argv else None
+    append_until_killed(argv[0], int(argv[1]), "--tear" in argv,
+                        lambda t: print(t, flush=True), batch)
+    return 0
 
 
 if __name__ == "__main__":

@@ -286,7 +286,7 @@ def test_points_and_rows_from_a_passage_log(tmp_path):
                    "lon": "28 36 W", "lon_deg": -28.6, "course_deg": 95.0, "speed_kn": 6.0})
         lg.append({"kind": "dr", "utc": "2026-03-20T13:00:00Z", "course_deg": 100.0})
         gone = lg.append({"kind": "dr", "utc": "2026-03-20T14:00:00Z", "lat": "38 29 N",
-                          "lat_deg": 38.48, "lon": "28 29 W", "lon_deg": -28.48})
+                          "lat_deg": 38.4833, "lon": "28 29 W", "lon_deg": -28.4833})
         lg.strike(gone.id, "plotted the wrong time")
         lg.append({"kind": "fix", "utc": "2026-03-20T15:00:00Z", "lat_deg": 38.45,
                    "lon_deg": -28.2, "fix_kind": "running_fix", "sight_ids": [s1.id, s2.id],

@@ -11,6 +11,11 @@
 - ``nav import SIGHTS.csv --log LOG [--new --vessel NAME --title TITLE]``: the sights of a batch
   file (the contract of ``nav reduce`` and ``nav fix``) appended to a passage log in one batch.
 
+Files follow :mod:`nav.files`: only regular files are read or written (a FIFO, a device or a
+folder is refused at once), and an existing output file (an export, the demo's pictures) is
+replaced only with ``--replace``. ``nav import`` refuses a sight that is already logged (the log
+checks it) and says, on opening, when an earlier import was cut off and set aside.
+
 Bad input is reported one problem per line on stderr, exit code 2, and nothing is written.
 """
 
@@ -44,6 +49,9 @@ def register(sub) -> None:
                     "passage plot follows. The sights are invented, not observations.")
     d.add_argument("--out", metavar="DIR", default=DEMO_OUT,
                    help=f"folder for the PNG files (default: {DEMO_OUT}/ in the current folder)")
+    d.add_argument("--replace", action="store_true",
+                   help="replace the PNG files of an earlier run (without it, existing files "
+                        "are refused)")
     d.set_defaults(func=run_demo)
 
     e = sub.add_parser(
@@ -53,8 +61,11 @@ def register(sub) -> None:
                     "back (each sight with the index error, height of eye, weather, horizon and "
                     "DR its reduction used), or as a CSV table of their reductions. Decimal "
                     "degrees; cells that could start a spreadsheet formula are made text. "
-                    "FILE '-' writes to standard output.")
+                    "FILE '-' writes to standard output. Only regular files are written; an "
+                    "existing file only with --replace.")
     e.add_argument("log", metavar="LOG", help="the passage log (.jsonl)")
+    e.add_argument("--replace", action="store_true",
+                   help="replace FILE if it exists (without it, an existing file is refused)")
     fmt = e.add_mutually_exclusive_group(required=True)
     fmt.add_argument("--gpx", metavar="FILE", help="fixes as waypoints, the DR track as a track")
     fmt.add_argument("--geojson", metavar="FILE", help="fixes as Points, the DR track as a line")
@@ -169,8 +180,9 @@ class DemoFix:
     sheet: Path
 
 
-def replay_demo(out_dir: Path, say=print) -> list[DemoFix]:
-    """Replay the demo into `out_dir` (created), printing as it goes; returns the fixes."""
+def replay_demo(out_dir: Path, say=print, replace: bool = False) -> list[DemoFix]:
+    """Replay the demo into `out_dir` (created), printing as it goes; returns the fixes.
+    Its pictures follow the file rules of nav.files: an existing one only with `replace`."""
     from ..angles import format_lat, format_lon
     from ..export import ExportPoint
     from ..fix import in_ellipse
@@ -187,6 +199,13 @@ def replay_demo(out_dir: Path, say=print) -> list[DemoFix]:
     except OSError as err:
         raise NavInputError(f"cannot create {out_dir} ({err.strerror})", field="out",
                             example="--out demo_output") from None
+    earlier = sorted(p.name for p in [*out_dir.glob("fix-*.png"), out_dir / "passage.png"]
+                     if os.path.lexists(p))
+    if earlier and not replace:        # refused before any work (the rule of nav.files)
+        raise NavInputError(f"{out_dir} already holds the pictures of an earlier run "
+                            f"({', '.join(earlier[:3])}{' ...' if len(earlier) > 3 else ''}); "
+                            "add --replace to replace them", field="out",
+                            example="nav demo --replace, or nav demo --out another_folder")
     log = load_log(log_path)
     passage = Passage(log)
     track = read_truth(truth_path)
@@ -255,7 +274,8 @@ def replay_demo(out_dir: Path, say=print) -> list[DemoFix]:
                        known=(t_lat, t_lon, f.utc), known_label=KNOWN_LABEL,
                        title=f"{short} (invented demo): {f.kind} {f.utc:%d %b %Y} "
                              f"{format_hm(f.utc)} UTC ({e.id}" + (", struck)" if e.id in struck
-                                                                  else ")"), path=sheet)
+                                                                  else ")"), path=sheet,
+                       replace=replace)
         say(f"  plotting sheet {sheet}")
         out.append(DemoFix(e.id, f.kind, f.utc, f.n_sights, err, bearing, inside, dr_err, logged,
                            run_h, tuple(flagged), e.id in struck, sheet))
@@ -268,7 +288,7 @@ def replay_demo(out_dir: Path, say=print) -> list[DemoFix]:
     truth = [ExportPoint(p.utc, p.lat_deg, p.lon_deg, "other", "") for p in track]
     plot_passage(pts, replayed, reference_track=truth, reference_label=TRACK_LABEL,
                  title=f"{short} (invented demo): Azores to Madeira, DR track, fixes and the "
-                       "known track", path=plot_path)
+                       "known track", path=plot_path, replace=replace)
     say("")
     say("Fixes against the known track")
     say(f"  {'#':>2}  {'UTC':<16} {'kind':<12} {'sights':>6}  {'error':>9}  {'95% ellipse':<11}"
@@ -284,7 +304,7 @@ def replay_demo(out_dir: Path, say=print) -> list[DemoFix]:
 
 def run_demo(args) -> int:
     t0 = time.perf_counter()
-    replay_demo(Path(args.out))
+    replay_demo(Path(args.out), replace=args.replace)
     print(f"\nReplayed in {time.perf_counter() - t0:.1f} s.")
     print(CAUTION)
     return 0
@@ -292,33 +312,16 @@ def run_demo(args) -> int:
 
 # ---------------------------------------------------------------- nav export
 
-def _write_text(target: str, text: str, log_path: Path) -> str:
-    """Write `text` to `target` ('-' is standard output): complete or not at all."""
+def _write_text(target: str, text: str, log_path: Path, replace: bool) -> str:
+    """Write `text` to `target` ('-' is standard output) by the rules of nav.files."""
+    from ..files import write_output
+
     if target == "-":
         sys.stdout.write(text)
         sys.stdout.flush()
         return "standard output"
-    path = Path(target)
-    if path.exists() and log_path.exists() and os.path.samefile(path, log_path):
-        raise NavInputError(f"{target} is the passage log itself; choose another file",
-                            field="file", example="passage.gpx")
-    if path.is_dir():
-        raise NavInputError(f"{target} is a folder; give a file name", field="file",
-                            example=f"{target.rstrip('/')}/passage.gpx")
-    tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
-    try:
-        with open(tmp, "w", encoding="utf-8", newline="") as f:
-            f.write(text)
-            f.flush()
-            os.fsync(f.fileno())
-        os.replace(tmp, path)
-    except OSError as err:
-        try:
-            tmp.unlink()
-        except OSError:
-            pass
-        raise NavInputError(f"cannot write {target} ({err.strerror})", field="file",
-                            example="a file in a folder you can write to") from None
+    write_output(target, text, replace=replace, field="file", example="passage.gpx",
+                 protect=[log_path])
     return target
 
 
@@ -327,6 +330,11 @@ def run_export(args) -> int:
     from ..logbook import load_log
     from ..passage import Passage
 
+    target = args.gpx or args.geojson or args.csv or args.reductions
+    if target != "-":                  # refused before any work: a device, a FIFO, a folder ...
+        from ..files import check_output
+
+        check_output(target, replace=args.replace, example="passage.gpx", protect=[args.log])
     log = load_log(args.log)
     name = log.header["title"]
     sights = args.csv or args.reductions
@@ -352,7 +360,7 @@ def run_export(args) -> int:
                               ensure_ascii=False) + "\n"
             target, fmt = args.geojson, "GeoJSON"
         what = f"{len(fixes)} fix(es) and a DR track of {len(track)} point(s) as {fmt}"
-    where = _write_text(target, text, Path(args.log))
+    where = _write_text(target, text, Path(args.log), args.replace)
     print(f"nav export: wrote {what} to {where}", file=sys.stderr if target == "-" else sys.stdout)
     if target != "-":                  # every export holds positions (the CSV files: the DRs)
         print(CAUTION)
@@ -401,6 +409,9 @@ def run_import(args) -> int:
         _refuse(args, errors)
     entries = entries_from_rows(rows, Path(args.file).name)
     log = new_log(args.log, args.vessel, args.title) if args.new else PassageLog.open(args.log)
+    for p in log.problems:             # a torn line or a cut-off import set aside on opening
+        if p.severity == "warning":
+            print(f"nav import: caution: {args.log}: {p}", file=sys.stderr)
     try:
         _append(args, log, rows, entries)
     except BaseException:

@@ -32,6 +32,9 @@ def register(sub) -> None:
     f.add_argument("--confidence", type=float, default=0.95,
                    help="probability the error ellipse is meant to cover (default 0.95)")
     f.add_argument("--plot", metavar="FILE.png|FILE.pdf", help="also draw the plotting sheet")
+    f.add_argument("--replace", action="store_true",
+                   help="let --plot replace an existing file (without it, an existing file is "
+                        "refused)")
     f.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
     f.add_argument("--bias", action="store_true",
                    help="also estimate one altitude error shared by all sights (index error, "
@@ -176,8 +179,8 @@ def _one_fix(args, c, n_fixes: int) -> dict:
         from ..plotting import plot_fix_sheet
 
         plot_fix_sheet(fix, lops, dr=(result.dr_lat_deg, result.dr_lon_deg), title=title,
-                       path=plot, **({"known": c.ep, "known_label": "EP (DR + current)"}
-                                     if c.ep else {}))
+                       path=plot, replace=args.replace,
+                       **({"known": c.ep, "known_label": "EP (DR + current)"} if c.ep else {}))
     if args.json:
         sights = []
         for i, row in enumerate(result.rows):

@@ -263,8 +263,19 @@ def _file_word(tok: Token, extensions, fld: str, example: str) -> str:
     return name
 
 
+REPLACE_WORD = "replace"        # the shell's word for the CLI's --replace (see nav.files)
+
+
+def _replace_word(args: list[Token]) -> tuple[list[Token], bool]:
+    """A last word `replace` (not quoted) asks to replace an existing file."""
+    if args and not args[-1].quoted and args[-1].text.lower() == REPLACE_WORD:
+        return list(args[:-1]), True
+    return list(args), False
+
+
 def parse_plot(args, line, ctx) -> Request:
     example = "plot fix e0009 sheet.png, plot passage, or plot"
+    args, replace = _replace_word(args)
     words = [a.text.lower() for a in args]
     what, fix_id, path, rest = None, None, None, list(args)
     if words[:1] == ["passage"]:
@@ -276,11 +287,12 @@ def parse_plot(args, line, ctx) -> Request:
     if rest:
         path = _file_word(rest[0], PLOT_EXTENSIONS, "file", example)
         _no_more(rest[1:], "plot", example)
-    return Request("plot", args={"what": what, "id": fix_id, "path": path})
+    return Request("plot", args={"what": what, "id": fix_id, "path": path, "replace": replace})
 
 
 def parse_export(args, line, ctx) -> Request:
     example = "export gpx passage.gpx"
+    args, replace = _replace_word(args)
     if not args or args[0].text.lower() not in EXPORT_FORMATS:
         raise NavInputError("name the format: " + ", ".join(EXPORT_FORMATS), field="format",
                             example=example)
@@ -290,7 +302,7 @@ def parse_export(args, line, ctx) -> Request:
         path = _file_word(args[1], ("." + fmt, ".json") if fmt == "geojson" else ("." + fmt,),
                           "file", f"export {fmt} passage.{fmt}")
         _no_more(args[2:], "export", example)
-    return Request("export", args={"format": fmt, "path": path})
+    return Request("export", args={"format": fmt, "path": path, "replace": replace})
 
 
 def parse_import(args, line, ctx) -> Request:

@@ -206,8 +206,9 @@ def run_plot(st, req) -> None:
             ep = None
         plot_fix_sheet(result.fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
                        title=f"{st.vessel}: {kind} {result.fix.utc:%Y-%m-%d %H:%M} UTC ({fid})",
-                       path=out, **({"known": ep, "known_label": "EP (DR + current)"}
-                                    if ep else {}))
+                       path=out, replace=req.args.get("replace", False),
+                       replace_hint=SHELL_REPLACE_HINT,
+                       **({"known": ep, "known_label": "EP (DR + current)"} if ep else {}))
         _, moved = rhumb_line(fx["lat_deg"], fx["lon_deg"], result.fix.lat_deg,
                               result.fix.lon_deg)
         if float(moved) > 0.05:
@@ -225,21 +226,22 @@ def run_plot(st, req) -> None:
 
     ep = ep_track(st.passage, track)          # issue 10: the EP track beside the DR's
     plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out,
+                 replace=req.args.get("replace", False), replace_hint=SHELL_REPLACE_HINT,
                  **({"reference_track": ep, "reference_label": "EP track (DR + current)"}
                     if ep else {}))
     st.say(f"passage plot written to {out}" + (", with the EP track" if ep else ""))
 
 
-def _write_new(path: Path, text: str) -> None:
-    try:
-        with open(path, "x", encoding="utf-8", newline="") as f:
-            f.write(text)
-    except FileExistsError:
-        raise NavInputError(f"{path} already exists; an export never overwrites a file",
-                            field="file", example=f"export ... {path.stem}-2{path.suffix}") from None
-    except OSError as err:
-        raise NavInputError(f"{path} cannot be written ({err.strerror})", field="file",
-                            example="a file in a folder you can write to") from None
+SHELL_REPLACE_HINT = "the word replace at the end"
+
+
+def _write_new(st, path: Path, text: str, replace: bool) -> None:
+    """The file rules of nav.files, shared with the CLI (its --replace is our word replace)."""
+    from ..files import write_output
+
+    write_output(path, text, replace=replace, field="file",
+                 example=f"export ... {path.stem}-2{path.suffix}",
+                 replace_hint=SHELL_REPLACE_HINT, protect=[st.log.path])
 
 
 def run_export(st, req) -> None:
@@ -259,7 +261,7 @@ def run_export(st, req) -> None:
         rows = ex.sight_rows(st.log)
         text = ex.sights_to_csv(rows, ex.SIGHT_CSV_COLUMNS)
         what = f"{len(rows)} sight(s)"
-    _write_new(path, text)
+    _write_new(st, path, text, req.args.get("replace", False))
     st.say(f"exported {what} as {fmt.upper() if fmt != 'geojson' else 'GeoJSON'} to {path}")
 
 

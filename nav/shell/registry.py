@@ -210,16 +210,18 @@ COMMANDS_LIST = (
              "correct e0003 position 41 14.0 N 032 05.0 W -- plotted wrong")),
     Command("note", "note TEXT", "log a note (time: now)", parse_note, handlers.run_note,
             (), "text", (), ("note reefed at dusk",)),
-    Command("plot", "plot [fix [ID] | passage] [FILE.png | FILE.pdf]",
+    Command("plot", "plot [fix [ID] | passage] [FILE.png | FILE.pdf] [replace]",
             "draw a fix's plotting sheet (default: the latest fix) or the passage",
             parse_plot, records.run_plot, (), "plot",
             ("without a file the plot goes next to the log, as <log>-<fix id>.png or "
-             "<log>-passage.png",), ("plot", "plot fix e0009 sheet.pdf", "plot passage")),
-    Command("export", "export gpx|geojson|csv [FILE]",
+             "<log>-passage.png; an existing file is refused unless the last word is replace",),
+            ("plot", "plot fix e0009 sheet.pdf", "plot passage sheet.png replace")),
+    Command("export", "export gpx|geojson|csv [FILE] [replace]",
             "export fixes and track (GPX, GeoJSON) or the sights (CSV)",
             parse_export, records.run_export, (), "format",
-            ("without a file the export goes next to the log; an existing file is never "
-             "overwritten",), ("export gpx", "export csv sights-out.csv")),
+            ("without a file the export goes next to the log; an existing file is refused "
+             "unless the last word is replace",),
+            ("export gpx", "export csv sights-out.csv", "export gpx passage.gpx replace")),
     Command("import", "import FILE.csv",
             "append the sights and DRs of a batch CSV file (the file of nav reduce / nav fix)",
             parse_import, records.run_import, (), "csv",
