@@ -70,3 +70,15 @@ def test_array_of_instants_matches_scalar():
     days = np.arange(0, 10, 0.5)
     got = [r.error_at(D0 + timedelta(days=float(d))) for d in days]
     assert np.allclose(got, 4.0 + 0.5 * days, atol=1e-9)      # 4 s + 0.5 s/day, by hand
+
+
+def test_watch_error_date_parser():
+    # ISO 8601: a calendar date alone is read as 00:00 UTC (the batch contract of issue 10)
+    from nav.timekeeping import parse_date_or_utc
+
+    assert parse_date_or_utc("2026-06-01") == D0
+    assert parse_date_or_utc("2026-06-01T03:00:00+03:00") == D0
+    with pytest.raises(NavInputError, match="not a real date"):
+        parse_date_or_utc("2026-02-30")
+    with pytest.raises(NavInputError):
+        parse_date_or_utc("June 1st")
