@@ -1,6 +1,6 @@
 """nav: a celestial-navigation sight-reduction workbench.
 
-A cross-check and teaching aid. It backs up, and never replaces, approved navigation
+A working tool: a cross-check that backs up, and never replaces, approved navigation
 practice, charts and instruments; the skipper stays responsible.
 
 Importing this package imports nothing heavy: each module is imported where it is used.
@@ -9,6 +9,6 @@ Importing this package imports nothing heavy: each module is imported where it i
 __version__ = "0.1.0"
 
 CAUTION = (
-    "CAUTION: nav is a cross-check and teaching aid. It backs up, and never replaces, "
-    "approved navigation practice, charts and instruments. The skipper stays responsible."
+    "CAUTION: nav is a cross-check that backs up, and never replaces, approved navigation "
+    "practice, charts and instruments. The skipper stays responsible."
 )

@@ -142,8 +142,8 @@ _DM_RE = re.compile(
 _HEMI_RE = re.compile(r"^\s*(?P<h1>[NSEWnsew])?\s*(?P<body>[^NSEWnsew]*?)\s*(?P<h2>[NSEWnsew])?\s*$")
 
 
-def _parse_dm(text: str, field: str, example: str) -> float:
-    """Decimal degrees (``34.205``) or degrees and decimal minutes (``34 12.3``, ``34°12.3′``)."""
+def _parse_dm_parts(text: str, field: str, example: str) -> tuple[float, bool]:
+    """(degrees, whether minutes were given) of ``34.205``, ``34 12.3`` or ``34°12.3′``."""
     if not isinstance(text, str):
         text = str(text)
     s = text.strip().replace("\u2019", "'").replace("\u00ba", "\u00b0")
@@ -164,7 +164,12 @@ def _parse_dm(text: str, field: str, example: str) -> float:
         deg = -deg
     if not math.isfinite(deg):
         raise NavInputError(f"'{text}' is not a finite angle", field=field, example=example)
-    return deg
+    return deg, minutes is not None
+
+
+def _parse_dm(text: str, field: str, example: str) -> float:
+    """Decimal degrees (``34.205``) or degrees and decimal minutes (``34 12.3``, ``34°12.3′``)."""
+    return _parse_dm_parts(text, field, example)[0]
 
 
 def parse_angle(text: str, field: str = "angle", *, min_deg: float = 0.0, max_deg: float = 360.0,
@@ -177,37 +182,72 @@ def parse_angle(text: str, field: str = "angle", *, min_deg: float = 0.0, max_de
     return deg
 
 
-def parse_altitude(text: str, field: str = "hs") -> float:
-    """A sextant altitude, 0° to 90° (a back sight or a negative dip sight is refused here)."""
-    return parse_angle(text, field, min_deg=-1.0, max_deg=90.0, example="34.205, 34 12.3 or 34°12.3'")
+def parse_altitude(text: str, field: str = "hs", *, max_deg: float = 90.0) -> float:
+    """A sextant altitude, −1° to 90° (a back sight is refused here). An artificial horizon's
+    reading is the double altitude: its parser (:mod:`nav.fields`) passes ``max_deg=180``."""
+    return parse_angle(text, field, min_deg=-1.0, max_deg=max_deg,
+                       example="34.205, 34 12.3 or 34°12.3'")
+
+
+def _both_forms(value_deg: float, pos: str, neg: str) -> str:
+    """The two accepted spellings of a position value, e.g. ``35 10.1 N or 35.1683``."""
+    width = 2 if pos == "N" else 3
+    deg, minutes = _split_dm(value_deg, 1)
+    dec = abs(value_deg)
+    return (f"{deg:0{width}d} {minutes:04.1f} {pos} (or {neg}), or signed decimal degrees "
+            f"{dec:.4f} ({MINUS}{dec:.4f} for {neg})")
 
 
 def _parse_signed_hemi(text: str, field: str, pos: str, neg: str, limit: float, example: str,
                        kind: str | None = None) -> float:
+    """A latitude or longitude (or, with `kind`, another value named E/W). Rules (one place for
+    the CLI, the CSV files and the shell):
+
+    - degrees and minutes must carry their hemisphere letter (``35 10.1 N``): without it a slip
+      of a W or S turns into a position thousands of miles away, so it is refused (0° and 180°,
+      which have no side, excepted);
+    - signed decimal degrees (``35.1683``, ``-21.565``) are taken as north/east +;
+    - a letter of the other axis (W in a latitude, N in a longitude), or a latitude beyond 90°,
+      is refused with a message that says the latitude and longitude look swapped.
+    """
     if not isinstance(text, str):
         text = str(text)
     s = text.strip()
+    position = kind is None
+    kind, other = kind or field_kind(pos), field_kind("E" if pos == "N" else "N")
     m = _HEMI_RE.match(s)
     if not s or not m:
-        raise NavInputError(f"'{text}' is not a {kind or field_kind(pos)}", field=field,
-                            example=example)
+        letters = [c for c in s.upper() if c in "NSEW"]
+        swapped = position and letters and all(c not in (pos, neg) for c in letters)
+        raise NavInputError(
+            f"'{text}' names a {other} ({letters[0]}) in the {kind} field: are the latitude and "
+            "longitude swapped?" if swapped else f"'{text}' is not a {kind}",
+            field=field, example=example)
     h1, body, h2 = m.group("h1"), m.group("body"), m.group("h2")
     if h1 and h2:
         raise NavInputError(f"'{text}' names the hemisphere twice", field=field, example=example)
     hemi = (h1 or h2 or "").upper()
     if hemi and hemi not in (pos, neg):
-        raise NavInputError(f"'{text}': the hemisphere must be {pos} or {neg}", field=field,
-                            example=example)
-    value = _parse_dm(body, field, example)
+        raise NavInputError(f"'{text}' names a {other} ({hemi}) in the {kind} field: are the "
+                            f"latitude and longitude swapped? A {kind} takes {pos} or {neg}"
+                            if position else f"'{text}': a {kind} takes {pos} or {neg}",
+                            field=field, example=example)
+    value, has_minutes = _parse_dm_parts(body, field, example)
     if hemi:
         if value < 0:
             raise NavInputError(f"'{text}': give either a sign or {pos}/{neg}, not both", field=field,
                                 example=example)
         if hemi == neg:
             value = -value
+    elif has_minutes and abs(value) not in (0.0, 180.0):   # the equator, 0° and 180° have no side
+        raise NavInputError(f"'{text}' is in degrees and minutes without {pos} or {neg}: say which "
+                            f"{'hemisphere' if position else 'side'}", field=field,
+                            example=_both_forms(value, pos, neg) if position else example)
     if not (-limit <= value <= limit):
-        raise NavInputError(f"'{text}' is outside {limit:g}° {neg} to {limit:g}° {pos}", field=field,
-                            example=example)
+        hint = (": is this a longitude (latitude and longitude swapped?)"
+                if position and pos == "N" and abs(value) <= 180.0 else "")
+        raise NavInputError(f"'{text}' is outside {limit:g}° {neg} to {limit:g}° {pos}{hint}",
+                            field=field, example=example)
     return value
 
 
@@ -217,12 +257,12 @@ def field_kind(pos: str) -> str:
 
 def parse_lat(text: str, field: str = "lat") -> float:
     """Latitude in signed degrees (north +) from ``41 12.5 N``, ``41°12.5′S``, ``-41.2083``."""
-    return _parse_signed_hemi(text, field, "N", "S", 90.0, "41 12.5 N or -41.2083")
+    return _parse_signed_hemi(text, field, "N", "S", 90.0, "41 12.5 N or signed decimal -41.2083")
 
 
 def parse_lon(text: str, field: str = "lon") -> float:
     """Longitude in signed degrees (east +) from ``032 07.1 W``, ``32°07.1′E``, ``-32.118``."""
-    return _parse_signed_hemi(text, field, "E", "W", 180.0, "032 07.1 W or -32.118")
+    return _parse_signed_hemi(text, field, "E", "W", 180.0, "032 07.1 W or signed decimal -32.118")
 
 
 def parse_east_west(text: str, field: str = "variation") -> float:

@@ -11,7 +11,7 @@ import argparse
 import importlib
 import sys
 
-from .errors import NavError
+from .errors import NavError, printable
 
 # The subcommand modules, in the order their commands appear in --help.
 COMMAND_MODULES = (
@@ -38,14 +38,15 @@ class _Parser(argparse.ArgumentParser):
 
     def error(self, message: str):  # pragma: no cover - exercised through main()
         self.print_usage(sys.stderr)
-        self.exit(EXIT_INPUT, f"nav: error: {message}\n")
+        self.exit(EXIT_INPUT, f"nav: error: {printable(message)}\n")
 
 
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(
         prog="nav",
-        description="Celestial-navigation sight-reduction workbench. A cross-check and teaching "
-                    "aid: it backs up, and never replaces, approved navigation.",
+        description="Celestial-navigation sight-reduction workbench: a cross-check that backs "
+                    "up, and never replaces, approved navigation practice, charts and "
+                    "instruments. The skipper stays responsible.",
     )
     from . import __version__
 

@@ -63,7 +63,7 @@ import numpy as np
 from .almanac import EARTH_EQUATORIAL_RADIUS_KM, MOON_RADIUS_KM
 from .angles import asind, atan2d, cosd, format_dm, sind
 from .errors import NavInputError
-from .fields import parse_horizon, parse_limb
+from .fields import parse_horizon, parse_limb, weather_warnings
 
 # ---------------------------------------------------------------- constants (named, with sources)
 
@@ -354,6 +354,13 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
         _refuse_where((sd < 0) | (sd > 20.0), lambda i: f"SD {sd.ravel()[i]:g}′ is impossible",
                       "sd_arcmin", "16.1 (arcmin)", scalar)
 
+    # the reading: above 90° only an artificial horizon's double altitude (checked before halving)
+    art = hor == "artificial"
+    _refuse_where(~art & (hs > 90.0) | art & (hs > 180.0),
+                  lambda i: f"Hs {hs.ravel()[i]:g}° is above "
+                            f"{180 if art.ravel()[i] else 90}°" + ("" if art.ravel()[i] else
+                            ": only an artificial-horizon reading (the double altitude) can be"),
+                  "hs", "34 12.3, or 112 24.6 with an artificial horizon", scalar)
     # 1-2: index, horizon -> Ha
     index = -ie
     sea = hor == "sea"
@@ -379,7 +386,7 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
     parallax = np.where(with_parallax, (h_geo - h_c) * 60.0, 0.0)
     ho = h_c + parallax / 60.0
 
-    warnings = _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat)
+    warnings = _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat, t, p)
     return AltitudeCorrection(
         body_kind=kind, limb=limbs[()] if scalar else limbs, horizon=hor[()] if scalar else hor,
         hs_deg=_out(hs), index_arcmin=_out(index), dip_arcmin=_out(dip), ha_deg=_out(ha),
@@ -388,10 +395,10 @@ def correct_altitude(hs_deg, *, body_kind, limb="lower", index_error_arcmin=0.0,
         ho_deg=_out(ho), warnings=warnings[0] if scalar else tuple(warnings))
 
 
-def _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat) -> list[tuple[str, ...]]:
+def _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat, t, p) -> list[tuple[str, ...]]:
     """One tuple of messages per element (C order)."""
     n = int(np.prod(shape))
-    ha, ie, eye, sea = (np.broadcast_to(v, shape).ravel() for v in (ha, ie, eye, sea))
+    ha, ie, eye, sea, t, p = (np.broadcast_to(v, shape).ravel() for v in (ha, ie, eye, sea, t, p))
     out: list[tuple[str, ...]] = []
     for i in range(n):
         msgs = []
@@ -406,6 +413,7 @@ def _warnings(kind, shape, ha, ie, eye, sea, hp_arcmin, lat) -> list[tuple[str, 
                         "for a sea-horizon sight")
         if kind == "planet" and hp_arcmin is None:
             msgs.append("no HP given for the planet: parallax not applied (up to 0.5′ for Venus)")
+        msgs.extend(weather_warnings(float(t[i]), float(p[i])))
         if kind == "moon" and lat is None:
             msgs.append("Moon's parallax computed for a spherical Earth (no latitude given): "
                         "up to 0.2′ off")

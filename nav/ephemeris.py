@@ -22,11 +22,10 @@ from datetime import datetime
 import numpy as np
 
 from .errors import OutOfRangeError
-from .timekeeping import UTC, to_datetime64
+from .timekeeping import RANGE_TEXT, UTC, to_datetime64
 
 FIRST_INSTANT = datetime(1900, 1, 1, tzinfo=UTC)
 LAST_INSTANT = datetime(2050, 12, 31, 23, 59, 59, tzinfo=UTC)
-RANGE_TEXT = "1900-01-01 to 2050-12-31 (UTC)"
 EPHEMERIS_NAME = "DE421"
 
 _FIRST64 = np.datetime64("1900-01-01T00:00:00", "us")

@@ -75,17 +75,64 @@ def parse_sight_utc(text: str, field: str = "utc") -> datetime:
     return t
 
 
+def parse_hs(text: str, field: str = "hs") -> float:
+    """A sextant reading, −1° to 180°: above 90° only an artificial horizon's double altitude,
+    which :func:`check_hs_horizon` holds to once the horizon is known (range checks after halving).
+    """
+    return parse_altitude(text, field, max_deg=180.0)
+
+
+def check_hs_horizon(hs_deg: float, horizon: str, field: str = "hs") -> None:
+    """Refuse a reading above 90° unless it is from an artificial horizon (halved to ≤ 90°)."""
+    if horizon != "artificial" and hs_deg > 90.0:
+        raise NavInputError(f"Hs {hs_deg:g}° is above 90°: only an artificial-horizon reading "
+                            "(twice the altitude, halved by nav) goes above 90°; give the "
+                            "horizon as artificial, or mend Hs", field=field,
+                            example="34 12.3, or 112 24.6 with horizon artificial")
+
+
 def _index_error(text: str, field: str = "index_error") -> float:
     return parse_number(text, field, min_value=-30.0, max_value=30.0,
                         example="-1.5 (arcmin, + when the sextant reads high)")
 
 
+# Air temperature and pressure. The bounds are physical for a sight at sea (from memory: the
+# lowest sea-level pressure measured is about 870 hPa, in a typhoon's eye, the highest about
+# 1084 hPa; 800 hPa is the air some 2000 m up; the lowest air temperature measured anywhere is
+# about −89 °C, on a high ice plateau, the highest about +57 °C): a value outside them is a slip
+# (°F for °C, inHg or mmHg for hPa) and is refused. The passage log holds the same bounds.
+# Inside them, a value outside the usual range at sea (common practice, no source) is reduced
+# with a warning, since the refraction correction follows it.
+TEMPERATURE_BOUNDS_C = (-80.0, 60.0)
+TEMPERATURE_USUAL_C = (-30.0, 45.0)
+PRESSURE_BOUNDS_HPA = (800.0, 1100.0)
+PRESSURE_USUAL_HPA = (940.0, 1060.0)
+
+
 def _temperature(text: str, field: str = "temperature_c") -> float:
-    return parse_number(text, field, min_value=-60.0, max_value=60.0, example="10")
+    return parse_number(text, field, min_value=TEMPERATURE_BOUNDS_C[0],
+                        max_value=TEMPERATURE_BOUNDS_C[1], example="10 (°C; 50 °F is 10 °C)")
 
 
 def _pressure(text: str, field: str = "pressure_hpa") -> float:
-    return parse_number(text, field, min_value=800.0, max_value=1100.0, example="1013")
+    return parse_number(text, field, min_value=PRESSURE_BOUNDS_HPA[0],
+                        max_value=PRESSURE_BOUNDS_HPA[1],
+                        example="1013 (hPa = mbar; 29.92 inHg and 760 mmHg are 1013 hPa)")
+
+
+def weather_warnings(temperature_c: float, pressure_hpa: float) -> tuple[str, ...]:
+    """Warnings for an air temperature or pressure outside the usual range at sea."""
+    out = []
+    lo, hi = TEMPERATURE_USUAL_C
+    if not lo <= temperature_c <= hi:
+        out.append(f"air temperature {temperature_c:g} °C is extreme (usual at sea {lo:g} to "
+                   f"{hi:g} °C): check that it is in °C; refraction depends on it")
+    lo, hi = PRESSURE_USUAL_HPA
+    if not lo <= pressure_hpa <= hi:
+        out.append(f"air pressure {pressure_hpa:g} hPa is extreme (usual at sea level {lo:g} to "
+                   f"{hi:g} hPa): check that it is in hPa (760 mmHg is 1013 hPa); refraction "
+                   "depends on it")
+    return tuple(out)
 
 
 def _course(text: str, field: str = "course_deg") -> float:
@@ -118,6 +165,19 @@ def _sigma(text: str, field: str = "sigma_arcmin") -> float:
     return parse_number(text, field, min_value=0.05, max_value=30.0, example="1.0")
 
 
+MAX_NOTE_CHARS = 1000          # what a passage log keeps in a note (nav.logschema)
+
+
+def parse_note(text: str, field: str = "note") -> str:
+    """A free-text note, kept whole; one over :data:`MAX_NOTE_CHARS` characters is refused (never
+    cut short silently)."""
+    text = str(text)
+    if len(text) > MAX_NOTE_CHARS:
+        raise NavInputError(f"a note of {len(text):,} characters is over the limit of "
+                            f"{MAX_NOTE_CHARS:,}", field=field, example="a shorter note")
+    return text
+
+
 @dataclass(frozen=True)
 class FieldSpec:
     """One input field: its name (CSV column, shell option), parser, default, example and help."""
@@ -134,7 +194,8 @@ SIGHT_FIELDS: tuple[FieldSpec, ...] = (
     FieldSpec("utc", parse_sight_utc, True, None, "2026-03-20T18:42:10Z", "time of the sight, ISO 8601 with zone"),
     FieldSpec("body", parse_body, True, None, "Sun", "body observed"),
     FieldSpec("limb", parse_limb, False, None, "lower", "lower, upper or center (Sun, Moon)"),
-    FieldSpec("hs", parse_altitude, True, None, "34 12.3", "sextant altitude: 34.205, 34 12.3 or 34°12.3'"),
+    FieldSpec("hs", parse_hs, True, None, "34 12.3", "sextant altitude: 34.205, 34 12.3 or 34°12.3' "
+              "(an artificial horizon's double altitude up to 180°)"),
     FieldSpec("index_error", _index_error, False, 0.0, "-1.5", "index error, arcmin, + on the arc"),
     FieldSpec("eye_height_m", parse_height_m, False, 0.0, "2.5", "height of eye, metres (or 8 ft)"),
     FieldSpec("temperature_c", _temperature, False, 10.0, "10", "air temperature, °C"),
@@ -145,7 +206,7 @@ SIGHT_FIELDS: tuple[FieldSpec, ...] = (
     FieldSpec("course_deg", _course, False, None, "245", "course made good, degrees true"),
     FieldSpec("speed_kn", _speed, False, None, "6.5", "speed, knots"),
     FieldSpec("sigma_arcmin", _sigma, False, 1.0, "1.0", "expected sight error (1σ), arcmin"),
-    FieldSpec("note", lambda s, f="note": str(s)[:500], False, "", "hazy horizon", "free text"),
+    FieldSpec("note", parse_note, False, "", "hazy horizon", f"free text, up to {MAX_NOTE_CHARS} characters"),
     FieldSpec("set_deg", _set, False, None, "210",
               "current's set, degrees true (toward), from this row on"),
     FieldSpec("drift_kn", _drift, False, None, "0.8", "current's drift, knots, from this row on"),

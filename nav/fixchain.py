@@ -33,6 +33,7 @@ class ChainFix:
     set_drift: SetDrift | None              # since the previous fix (None for the first)
     along_ep: bool                          # earlier lines advanced along the EP track
     notes: tuple[str, ...]
+    rows: tuple[SightRow, ...] = ()         # the fix's rows, DRs as resolved (all, used or not)
 
 
 def split_fixes(rows: Sequence[SightRow]) -> list[tuple[str, tuple[SightRow, ...]]]:
@@ -89,14 +90,18 @@ def _chain(rows, currents, start, notes):
             if r.dr_given and start is not None:
                 notes.append(f"row {r.row}: the DR typed here is set aside; the DR restarts at "
                              "the previous fix")
-        out.append(replace(r, dr_lat_deg=p[0], dr_lon_deg=p[1], dr_given=r.dr_given and not start))
+        extra = {}
+        if start is not None:           # the DR's age counts from the fix it restarted at
+            extra["dr_age_h"] = (r.utc - start[2]).total_seconds() / 3600.0
+        out.append(replace(r, dr_lat_deg=p[0], dr_lon_deg=p[1],
+                           dr_given=r.dr_given and not start, **extra))
         eps.append(ep)
         t, course, speed, cur = r.utc, r.course_deg, r.speed_kn, c
     return out, eps, (t, course, speed, cur)
 
 
 def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95,
-                reductions=None) -> list[ChainFix]:
+                reductions=None, keep_doubtful: bool = False) -> list[ChainFix]:
     """Every fix of a batch file, in order (see the module docstring). `reductions`: the rows
     already reduced from their own DRs, used when the file is one fix (nothing restarted)."""
     rows = tuple(rows)
@@ -120,7 +125,8 @@ def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95,
                     for r, e in zip(resolved, eps)]
         red = reductions if (reductions is not None and start is None
                              and len(group) == len(rows)) else reduce_rows(resolved)
-        result = fix_from_rows(resolved, confidence=confidence, reductions=red, runs=runs)
+        result = fix_from_rows(resolved, confidence=confidence, reductions=red, runs=runs,
+                               keep_doubtful=keep_doubtful)
         along = bool(any_current and result.fix.kind == "running fix")
         if along:
             notes.append("the earlier lines were advanced along the EP track (the current in "
@@ -132,7 +138,7 @@ def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95,
                            result.dr_lon_deg, prev.utc, result.fix.utc)
         out.append(ChainFix(label=label, result=result,
                             ep=eps[-1] if any_current else None, set_drift=sd, along_ep=along,
-                            notes=tuple(notes)))
+                            notes=tuple(notes), rows=tuple(resolved)))
         _, course, speed, cur_now = state
         f = result.fix
         # the next fix's DR starts here, at the fix, with the course, speed and current in force

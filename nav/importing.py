@@ -30,7 +30,7 @@ def entries_from_rows(rows: Sequence[SightRow], source: str) -> list[dict]:
     out = []
     for r in rows:
         typed = r.cells
-        where = f"{source} row {r.row}"[:200]
+        where = f"{source} {'line' if r.line is not None else 'row'} {r.line or r.row}"[:200]
         dr: dict = {}
         if "dr_lat" in typed:
             dr.update(lat=typed["dr_lat"], lat_deg=r.dr_lat_deg, lon=typed["dr_lon"],

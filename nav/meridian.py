@@ -236,7 +236,7 @@ class NoonLongitude:
 
 
 def longitude_by_equation_of_time(observed_utc, date=None) -> NoonLongitude:
-    """The equation-of-time form of :func:`longitude_from_meridian_passage` (for teaching)."""
+    """The equation-of-time form of :func:`longitude_from_meridian_passage` (the working shown beside it)."""
     from . import almanac
 
     t = _instants(observed_utc, date)

@@ -29,7 +29,7 @@ import re
 from dataclasses import dataclass
 from datetime import date, datetime, time, timedelta
 
-from .errors import NavInputError
+from .errors import NavInputError, OutOfRangeError
 
 MERIDIAN_LIMIT_DEG = 1.0            # see the module docstring
 EX_MERIDIAN_WARN_ARCMIN = 0.5       # common practice, no source: a latitude this far off is shown
@@ -53,6 +53,8 @@ def parse_date(text: str, field: str = "date") -> date:
                             example=DATE_EXAMPLE)
     try:
         day = parse_naive_time(f"{str(text).strip()} 12:00:00", field).date()
+    except OutOfRangeError:
+        raise
     except NavInputError:
         raise NavInputError(f"'{text}' is not a real calendar date", field=field,
                             example=DATE_EXAMPLE) from None

@@ -25,7 +25,7 @@ from typing import Sequence
 from .errors import NavInputError
 from .sailing import dr_position, rhumb_line
 from .sightfile import SightRow
-from .timekeeping import UTC, parse_utc
+from .timekeeping import UTC, format_date_hm, format_date_hms, parse_utc
 
 DEFAULTS = {"eye_height_m": 0.0, "index_error_arcmin": 0.0, "watch_error_s": 0.0,
             "zone_description_h": 0.0, "temperature_c": 10.0, "pressure_hpa": 1010.0,
@@ -83,9 +83,9 @@ class Whereabouts:
     def describe(self) -> str:
         hours = self.age.total_seconds() / 3600.0
         if self.basis in ("fix", "running fix"):
-            what = f"{self.basis} at {self.anchor.utc:%Y-%m-%d %H:%M} UTC"
+            what = f"{self.basis} at {format_date_hm(self.anchor.utc)} UTC"
         else:
-            what = f"{self.basis.upper()} position entered at {self.anchor.utc:%Y-%m-%d %H:%M} UTC"
+            what = f"{self.basis.upper()} position entered at {format_date_hm(self.anchor.utc)} UTC"
         if hours < 1 / 60:
             return what
         return f"DR {hours:.1f} h from the {what}"
@@ -169,7 +169,7 @@ class Passage:
         i = bisect.bisect_right(self._anchor_times, utc) - 1
         if i < 0:
             raise NavInputError(
-                f"no position is known at or before {utc:%Y-%m-%d %H:%M:%S} UTC: enter a DR first",
+                f"no position is known at or before {format_date_hms(utc)} UTC: enter a DR first",
                 field="dr", example="dr 41 12.5 N 032 07.1 W course 245 speed 6.5")
         a = self.anchors[i]
         lat, lon = self._sail(a.lat_deg, a.lon_deg, a.utc, utc)
@@ -235,10 +235,11 @@ class Passage:
         s = self._settings_before.get(entry.id, self.settings)
         t = _utc(entry)
         if "dr_lat_deg" in entry.data:
-            lat, lon, given = entry["dr_lat_deg"], entry["dr_lon_deg"], True
+            lat, lon, given, age_h = entry["dr_lat_deg"], entry["dr_lon_deg"], True, 0.0
         else:
             w = self.where(t)
             lat, lon, given = w.lat_deg, w.lon_deg, False
+            age_h = w.age.total_seconds() / 3600.0
         leg = self.leg_at(t)
 
         def pick(name, default):
@@ -253,7 +254,7 @@ class Passage:
             pressure_hpa=pick("pressure_hpa", s.pressure_hpa),
             horizon=pick("horizon", s.horizon), dr_lat_deg=lat, dr_lon_deg=lon, dr_given=given,
             course_deg=leg.course_deg if leg else None, speed_kn=leg.speed_kn if leg else None,
-            sigma_arcmin=pick("sigma_arcmin", 1.0), note=entry.get("note", ""))
+            sigma_arcmin=pick("sigma_arcmin", 1.0), note=entry.get("note", ""), dr_age_h=age_h)
 
     def reduction_view(self, sight_entry) -> "Passage":
         """The passage a logged sight is reduced from: the one without the fixes it went into
@@ -275,8 +276,11 @@ class Passage:
         used = {sid for e in self.fix_entries for sid in e["sight_ids"]}
         return [(e, r) for e, r in self.sights() if e.id not in used]
 
-    def fix_from(self, sight_ids: Sequence[str], *, confidence: float = 0.95):
-        """Fix or running fix from the named sights (advanced along the legs to the last one)."""
+    def fix_from(self, sight_ids: Sequence[str], *, confidence: float = 0.95,
+                 keep_doubtful: bool = False):
+        """Fix or running fix from the named sights (advanced along the legs to the last one);
+        the entries returned are those of the sights used (a doubtful one is left out unless
+        `keep_doubtful`: :mod:`nav.plausibility`)."""
         from .workflow import fix_from_rows
 
         chosen = []
@@ -295,8 +299,9 @@ class Passage:
         along_ep = bool(self.currents_in_force(rows[0].utc, last.utc))
         run = self.run_ep if along_ep else self.run      # issue 10: along the EP track
         runs = [run(r.utc, last.utc, r.dr_lat_deg, r.dr_lon_deg) for r in rows]
-        result = fix_from_rows(rows, confidence=confidence, runs=runs)
-        return result, [e for e, _ in chosen]
+        result = fix_from_rows(rows, confidence=confidence, runs=runs,
+                               keep_doubtful=keep_doubtful, names=[e.id for e, _ in chosen])
+        return result, [chosen[i][0] for i in result.used]
 
     # ------------------------------------------------------------ for plots and export
 

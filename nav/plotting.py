@@ -25,7 +25,7 @@ from .plot_layout import (DPI, DR_C, ELLIPSE_FILL, FIX_C, GREY, KEY, KNOWN_EDGE,
                           LINE_COLOURS, REF_STYLE, SUMMARY_TEXT, TRACK_C, WARN, WARNINGS_TEXT,
                           Sheet, clip_line, fit_limits, lat_tick_label, new_chart, side_panel)
 from .sailing import rhumb_line
-from .timekeeping import UTC, format_hm
+from .timekeeping import UTC, format_hm, round_to_second
 from .units import NMI_PER_DEG
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -41,7 +41,7 @@ def when(t: datetime, style: str = "time") -> str:
     """UTC to the nearest minute: ``time`` 05:28, ``day`` 20 Mar 05:28, ``date`` 20 Mar 2026."""
     if style == "time":
         return format_hm(t)
-    m = t.astimezone(UTC) + timedelta(seconds=30)       # the day of the rounded minute
+    m = round_to_second(t.astimezone(UTC)) + timedelta(seconds=30)   # the rounded minute's day
     day = f"{m.day:02d} {_MONTHS[m.month - 1]}"
     return {"day": f"{day} {format_hm(t)}", "date": f"{day} {m.year}"}[style]
 

@@ -11,7 +11,8 @@ import numpy as np
 
 from . import CAUTION
 from .angles import format_arcmin, format_dm, format_lat, format_lon
-from .timekeeping import from_datetime64
+from .plausibility import FAR_FROM_DR
+from .timekeeping import format_date_hms, format_utc, from_datetime64, round_to_second
 
 LIMB_WORD = {"lower": "lower limb", "upper": "upper limb", "center": "centre"}
 
@@ -25,14 +26,17 @@ def intercept_text(intercept_nmi: float) -> str:
     return f"{abs(x):.1f} nmi {'toward' if x >= 0 else 'away'} ({abs(x):.1f} {'T' if x >= 0 else 'A'})"
 
 
-def sight_title(s, number: int | None = None, row: int | None = None) -> str:
-    """``Sight 3 (row 3): Sun lower limb, 2026-03-20 10:42:10 UTC``."""
+def sight_title(s, number: int | None = None, row: int | None = None, *,
+                line: int | None = None) -> str:
+    """``Sight 3 (line 4): Sun lower limb, 2026-03-20 10:42:10 UTC`` (a file's line, or a row)."""
     t = from_datetime64(s.utc) if isinstance(s.utc, np.datetime64) else s.utc
     limb = f" {LIMB_WORD[s.limb]}" if s.limb else ""
     head = f"Sight {number}" if number is not None else "Sight"
-    if row is not None and row != number:
+    if line is not None:
+        head += f" (line {line})"
+    elif row is not None and row != number:
         head += f" (row {row})"
-    return f"{head}: {s.body}{limb}, {t:%Y-%m-%d %H:%M:%S} UTC"
+    return f"{head}: {s.body}{limb}, {format_date_hms(t)} UTC"
 
 
 def reduction_lines(s, *, eye_height_m=None, index_error_arcmin=None, temperature_c=None,
@@ -78,7 +82,7 @@ def reduction_lines(s, *, eye_height_m=None, index_error_arcmin=None, temperatur
 def reduction_dict(s, row: int | None = None) -> dict:
     """One reduced sight for JSON (decimal degrees, unit suffixes)."""
     t = from_datetime64(s.utc) if isinstance(s.utc, np.datetime64) else s.utc
-    d = {"row": row, "body": s.body, "utc": f"{t:%Y-%m-%dT%H:%M:%S}Z", "limb": s.limb,
+    d = {"row": row, "body": s.body, "utc": format_utc(t), "limb": s.limb,
          "horizon": s.horizon}
     for k in ("hs_deg", "index_arcmin", "dip_arcmin", "ha_deg", "refraction_arcmin", "sd_arcmin",
               "augmentation_arcmin", "parallax_arcmin", "ho_deg", "gha_deg", "dec_deg", "hp_arcmin",
@@ -99,7 +103,8 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
 
     e = fix.ellipse
     kind = "Running fix" if fix.kind == "running fix" else "Fix"
-    out = [f"{kind} at {fix.utc:%Y-%m-%d %H:%M:%S} UTC from {fix.n_sights} sights",
+    far: list[str] = []
+    out = [f"{kind} at {format_date_hms(fix.utc)} UTC from {fix.n_sights} sights",
            f"  position     {format_lat(fix.lat_deg)}  {format_lon(fix.lon_deg)}",
            f"  ellipse      {e.confidence * 100:g}%: {e.semi_major_nmi:.1f} \u00d7 {e.semi_minor_nmi:.1f} nmi"
            f" (semi-axes), major axis {e.orientation_deg:05.1f}\u00b0/{(e.orientation_deg + 180) % 360:05.1f}\u00b0"
@@ -108,6 +113,8 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
         course, dist = rhumb_line(dr_lat_deg, dr_lon_deg, fix.lat_deg, fix.lon_deg)
         out.append(f"  from DR      {float(dist):.1f} nmi {float(course):05.1f}\u00b0 "
                    f"(DR {format_lat(dr_lat_deg)}  {format_lon(dr_lon_deg)})")
+        far = [w for w in fix.warnings if w.startswith(FAR_FROM_DR)]
+        out += [f"  !! {w}" for w in far]      # prominent: right under the position
     cut_name = "angle of cut" if fix.n_sights == 2 else "widest cut"
     out.append(f"  geometry     {cut_name} {fix.cut_angle_deg:.0f}\u00b0, azimuth spread "
                f"{fix.azimuth_spread_deg:.0f}\u00b0, {fix.iterations} iterations"
@@ -116,14 +123,14 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
     for i, label in enumerate(fix.labels):
         flag = "  << inconsistent with the others" if fix.flags[i] else ""
         out.append(f"    {label:<24}{fix.residuals_nmi[i]:+6.2f}  Zn {fix.zn_deg[i]:05.1f}\u00b0{flag}")
-    out += [f"  ! {w}" for w in fix.warnings]
+    out += [f"  ! {w}" for w in fix.warnings if w not in far]
     return out
 
 
 def fix_dict(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> dict:
     e = fix.ellipse
     return {
-        "utc": f"{fix.utc:%Y-%m-%dT%H:%M:%S}Z", "lat_deg": round(fix.lat_deg, 7),
+        "utc": format_utc(fix.utc), "lat_deg": round(fix.lat_deg, 7),
         "lon_deg": round(fix.lon_deg, 7), "kind": fix.kind,
         "ellipse": {"semi_major_nmi": round(e.semi_major_nmi, 4),
                     "semi_minor_nmi": round(e.semi_minor_nmi, 4),
@@ -194,10 +201,8 @@ MINUS = "\u2212"
 
 
 def _second(t):
-    """An instant (aware or naive) rounded to the whole second, for HH:MM:SS."""
-    from datetime import timedelta
-
-    return (t + timedelta(microseconds=500_000)).replace(microsecond=0)
+    """An instant (aware or naive) rounded to the whole second, for HH:MM:SS (the one rule)."""
+    return round_to_second(t)
 
 
 def _clock(hours: float) -> str:
@@ -241,9 +246,11 @@ def noon_lines(p) -> list[str]:
     rows = [("UTC", f"{utc:%H:%M:%S}", f"{utc:%Y-%m-%d}")]
     if n.zone_time is not None:
         zt = _second(n.zone_time)
-        zd_h = n.zone_description.total_seconds() / 3600.0
+        from .timekeeping import format_zone_description
+
         rows.append(("zone time", f"{zt:%H:%M:%S}",
-                     f"ZD {zd_h:+g} h, UTC = ZT + ZD ({zt:%Y-%m-%d})"))
+                     f"ZD {format_zone_description(n.zone_description)} h, UTC = ZT + ZD "
+                     f"({zt:%Y-%m-%d})"))
     if p.watch_reading is not None:
         rows.append(("watch", f"{_second(p.watch_reading):%H:%M:%S}",
                      f"the watch reading to expect (watch {_watch_text(p.watch_error_s)})"))
@@ -404,7 +411,7 @@ def meridian_latitude_dict(w) -> dict:
         return None if x is None else round(float(x), k)
 
     return {
-        "method": w.method, "body": w.body, "utc": f"{w.utc:%Y-%m-%dT%H:%M:%S}Z",
+        "method": w.method, "body": w.body, "utc": format_utc(w.utc),
         "lat_deg": r(w.lat_deg), "ho_deg": r(w.ho_deg), "gha_deg": _r360(w.gha_deg),
         "dec_deg": r(w.dec_deg), "lha_deg": _r360(w.lha_deg), "dr_lat_deg": r(w.dr_lat_deg),
         "dr_lon_deg": r(w.dr_lon_deg), "bearing": w.bearing,

@@ -170,7 +170,7 @@ def rhumb_line(lat1_deg, lon1_deg, lat2_deg, lon2_deg):
 
 
 def mid_latitude_sailing(lat_deg, lon_deg, course_deg, dist_nmi):
-    """The teaching approximation for short runs: d_lat = d cos C, d_lon = dep / cos(mid lat).
+    """The mid-latitude approximation for short runs: d_lat = d cos C, d_lon = dep / cos(mid lat).
 
     Agrees with Mercator sailing to a fraction of a cable for runs of a day or two away from high
     latitudes (the tests measure it); prefer :func:`rhumb_direct`.

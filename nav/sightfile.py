@@ -15,13 +15,14 @@ from __future__ import annotations
 import csv
 import difflib
 import io
+import re
 from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Mapping
 from datetime import datetime
 
 from .errors import NavInputError
-from .fields import SIGHT_FIELD_BY_NAME, SIGHT_FIELDS, check_limb
+from .fields import SIGHT_FIELD_BY_NAME, SIGHT_FIELDS, check_hs_horizon, check_limb
 
 MAX_FILE_BYTES = 20 * 1024 * 1024
 MAX_ROWS = 1_000_000
@@ -55,6 +56,10 @@ class SightRow:
     note: str
     cells: Mapping[str, str] = field(default_factory=dict, compare=False)
     """The row's non-empty cells as typed, by field name (what a passage log keeps as typed)."""
+    line: int | None = None
+    """The file's line where the row starts, as an editor numbers it (the header is line 1)."""
+    dr_age_h: float = 0.0
+    """Hours since the DR was last set from a position (a row's typed DR, a log's anchor)."""
 
 
 @dataclass(frozen=True)
@@ -62,6 +67,8 @@ class SightFile:
     rows: tuple[SightRow, ...]
     errors: tuple[NavInputError, ...] = field(default_factory=tuple)
     skipped_rows: tuple[int, ...] = field(default_factory=tuple)
+    warnings: tuple[str, ...] = field(default_factory=tuple)
+    """Things computed on but worth a look (the same sight in two rows)."""
 
 
 def _decode(data: bytes, source: str) -> str:
@@ -73,12 +80,75 @@ def _decode(data: bytes, source: str) -> str:
                             example="a CSV file of sights saved as UTF-8 text")
     if b"\x00" in data:
         raise NavInputError(f"{source} is not a text file (it holds NUL bytes)", field="file",
+                            line=data[:data.index(b"\x00")].count(b"\n") + 1,
                             example="a CSV file of sights saved as UTF-8 text")
     try:
         return data.decode("utf-8-sig")
     except UnicodeDecodeError as err:
+        line = data[:err.start].count(b"\n") + 1
         raise NavInputError(f"{source} is not UTF-8 text (byte {err.start})", field="file",
+                            line=line,
                             example="a CSV file of sights saved as UTF-8 text") from None
+
+
+# Control characters a text file of sights never holds (tab and the line ends are allowed).
+_CONTROL = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+
+
+def _text_lines(text: str) -> str:
+    """The text with CR LF and CR-only line ends made LF (read as an editor shows them), after
+    refusing control characters with the lines that hold them."""
+    text = text.replace("\r\n", "\n").replace("\r", "\n")
+    bad: dict[str, list[int]] = {}
+    for m in _CONTROL.finditer(text):
+        line = text.count("\n", 0, m.start()) + 1
+        bad.setdefault(f"U+{ord(m.group(0)):04X}", [])
+        if line not in bad[f"U+{ord(m.group(0)):04X}"]:
+            bad[f"U+{ord(m.group(0)):04X}"].append(line)
+        if sum(map(len, bad.values())) >= MAX_LISTED:
+            break
+    if bad:
+        lines = sorted({n for v in bad.values() for n in v})
+        raise NavInputError(f"the file holds control characters ({', '.join(sorted(bad))}), which "
+                            f"a file of sights never does: {_lines_text(lines)}", field="file",
+                            line=lines[0] if len(lines) == 1 else None,
+                            example="a CSV file saved as plain UTF-8 text")
+    return text
+
+
+MAX_LISTED = 20
+
+
+def _lines_text(lines) -> str:
+    lines = list(lines)
+    head = ", ".join(map(str, lines[:MAX_LISTED]))
+    more = f" and {len(lines) - MAX_LISTED} more" if len(lines) > MAX_LISTED else ""
+    return f"line{'s' if len(lines) > 1 else ''} {head}{more}"
+
+
+def summarise_errors(errors) -> list[str]:
+    """One line per distinct message: an error that repeats across rows is said once, with the
+    list of its lines (or rows)."""
+    groups: dict[str, list] = {}
+    for err in errors:
+        key = err.detail() if isinstance(err, NavInputError) else str(err)
+        groups.setdefault(key, []).append(err)
+    out = []
+    for key, errs in groups.items():
+        if len(errs) == 1:
+            out.append(str(errs[0]))
+            continue
+        lines = [e.line for e in errs if getattr(e, "line", None) is not None]
+        rows = [e.row for e in errs if getattr(e, "row", None) is not None]
+        if len(lines) == len(errs):
+            where = _lines_text(lines)
+        elif len(rows) == len(errs):
+            where = f"rows {', '.join(map(str, rows[:MAX_LISTED]))}" + (
+                f" and {len(rows) - MAX_LISTED} more" if len(rows) > MAX_LISTED else "")
+        else:
+            where = f"{len(errs)} times"
+        out.append(f"{where}: {key}")
+    return out
 
 
 def read_sight_file(path: str, *, skip_bad_rows: bool = False) -> SightFile:
@@ -99,19 +169,19 @@ def _header(names: list[str]) -> list[str | None]:
         if key not in SIGHT_FIELD_BY_NAME:
             near = difflib.get_close_matches(key, list(SIGHT_FIELD_BY_NAME), n=1)
             hint = f"; did you mean '{near[0]}'?" if near else ""
-            raise NavInputError(f"unknown column '{raw}'{hint}", field="header", row=0,
+            raise NavInputError(f"unknown column '{raw}'{hint}", field="header", row=0, line=1,
                                 example=",".join(f.name for f in SIGHT_FIELDS[:6]))
         if key in seen:
-            raise NavInputError(f"column '{raw}' appears twice", field="header", row=0,
+            raise NavInputError(f"column '{raw}' appears twice", field="header", row=0, line=1,
                                 example="utc,body,hs")
         seen.add(key)
         out.append(key)
     missing = [r for r in REQUIRED if r not in seen]
     if missing:
         raise NavInputError(f"missing required column(s): {', '.join(missing)}", field="header",
-                            row=0, example="utc,body,hs,dr_lat,dr_lon")
+                            row=0, line=1, example="utc,body,hs,dr_lat,dr_lon")
     if ("dr_lat" in seen) != ("dr_lon" in seen):
-        raise NavInputError("dr_lat and dr_lon go together", field="header", row=0,
+        raise NavInputError("dr_lat and dr_lon go together", field="header", row=0, line=1,
                             example="...,dr_lat,dr_lon")
     return out
 
@@ -129,6 +199,11 @@ def _parse_cells(row_no: int, cells: dict[str, str]) -> tuple[dict, list[NavInpu
             continue
         try:
             values[spec.name] = spec.parse(text, spec.name)
+        except NavInputError as err:
+            errors.append(err.at_row(row_no))
+    if values.get("hs") is not None and not any(e.field in ("hs", "horizon") for e in errors):
+        try:
+            check_hs_horizon(values["hs"], values.get("horizon") or "sea")
         except NavInputError as err:
             errors.append(err.at_row(row_no))
     values["hs_text"] = (cells.get("hs") or "").strip()
@@ -154,43 +229,64 @@ def parse_sight_csv(text: str, *, skip_bad_rows: bool = False) -> SightFile:
     """
     from .sailing import dr_position
 
-    reader = csv.reader(io.StringIO(text))
+    reader = csv.reader(io.StringIO(_text_lines(text), newline=""), strict=True)
+    start = 1
+
+    def csv_error(err: csv.Error) -> NavInputError:
+        why = str(err)
+        if "unexpected end of data" in why:
+            why = ("a double quote opened in the row starting here is never closed, so the rest "
+                   "of the file would be read as one cell")
+        return NavInputError(f"not read as CSV: {why}", field="file", line=start,
+                             example='cells with commas in double quotes: "hazy, low cloud"')
+
     try:
         header = next(reader)
     except StopIteration:
         raise NavInputError("the file is empty", field="file", example="utc,body,hs") from None
     except csv.Error as err:
-        raise NavInputError(f"not a CSV file: {err}", field="file", example="utc,body,hs") from None
+        raise csv_error(err) from None
     columns = _header(header)
     parsed: list[tuple[int, dict]] = []
     errors: list[NavInputError] = []
     skipped: list[int] = []
-    try:
-        for row_no, cells in enumerate(reader, start=1):
-            if row_no > MAX_ROWS:
-                raise NavInputError(f"more than {MAX_ROWS:,} rows", field="file", row=row_no,
-                                    example="split the file")
-            if not any(c.strip() for c in cells):
-                continue  # a blank line carries nothing
-            if len(cells) != len(columns):
-                errors.append(NavInputError(f"{len(cells)} cells where the header has {len(columns)}",
-                                            field="row", row=row_no, example="one cell per column"))
-                skipped.append(row_no)
-                continue
-            values, row_errors = _parse_cells(row_no, dict(zip(columns, cells)))
-            if row_errors:
-                errors.extend(row_errors)
-                skipped.append(row_no)
-                continue
-            parsed.append((row_no, values))
-    except csv.Error as err:
-        raise NavInputError(f"not a CSV file: {err}", field="file", example="utc,body,hs") from None
+    line_of: dict[int, int] = {}
+    row_no = 0
+    while True:
+        start = reader.line_num + 1
+        try:
+            cells = next(reader)
+        except StopIteration:
+            break
+        except csv.Error as err:
+            raise csv_error(err) from None
+        row_no += 1
+        line_of[row_no] = start
+        if row_no > MAX_ROWS:
+            raise NavInputError(f"more than {MAX_ROWS:,} rows", field="file", line=start,
+                                example="split the file")
+        if not any(c.strip() for c in cells):
+            continue  # a blank line carries nothing
+        if len(cells) != len(columns):
+            errors.append(NavInputError(f"{len(cells)} cells where the header has {len(columns)}",
+                                        field="row", row=row_no, line=start,
+                                        example="one cell per column"))
+            skipped.append(row_no)
+            continue
+        values, row_errors = _parse_cells(row_no, dict(zip(columns, cells)))
+        if row_errors:
+            errors.extend(e.at_line(start) for e in row_errors)
+            skipped.append(row_no)
+            continue
+        parsed.append((row_no, values))
     if errors and not skip_bad_rows:
         return SightFile(rows=(), errors=tuple(errors), skipped_rows=tuple(skipped))
 
     rows: list[SightRow] = []
     prev: SightRow | None = None
+    dr_set_utc = None
     for row_no, v in parsed:
+        n_errors = len(errors)
         if prev is not None and v["utc"] < prev.utc:
             errors.append(NavInputError(f"time {v['utc']:%Y-%m-%d %H:%M:%S}Z is before the row above",
                                         field="utc", row=row_no, example="rows in time order"))
@@ -226,20 +322,45 @@ def parse_sight_csv(text: str, *, skip_bad_rows: bool = False) -> SightFile:
             else:
                 lat, lon = prev.dr_lat_deg, prev.dr_lon_deg
             given = False
+        if given:
+            dr_set_utc = v["utc"]
         row = SightRow(
             row=row_no, utc=v["utc"], body=v["body"], hs_deg=v["hs"], hs_text=v["hs_text"],
             limb=v["limb"], index_error_arcmin=v["index_error"], eye_height_m=v["eye_height_m"],
             temperature_c=v["temperature_c"], pressure_hpa=v["pressure_hpa"], horizon=v["horizon"],
             dr_lat_deg=lat, dr_lon_deg=lon, dr_given=given, course_deg=course, speed_kn=speed,
-            sigma_arcmin=v["sigma_arcmin"], note=v["note"], cells=v["cells"])
+            sigma_arcmin=v["sigma_arcmin"], note=v["note"], cells=v["cells"],
+            line=line_of[row_no],
+            dr_age_h=(v["utc"] - dr_set_utc).total_seconds() / 3600.0)
         rows.append(row)
         prev = row
+    for err in errors:
+        if err.line is None and err.row in line_of:
+            err.at_line(line_of[err.row])
     if errors and not skip_bad_rows:
         return SightFile(rows=(), errors=tuple(errors), skipped_rows=tuple(skipped))
     if not rows and not errors:
-        raise NavInputError("the file has a header but no sights", field="file", row=1,
+        raise NavInputError("the file has a header but no sights", field="file", line=2,
                             example="utc,body,hs,dr_lat,dr_lon")
-    return SightFile(rows=tuple(rows), errors=tuple(errors), skipped_rows=tuple(sorted(set(skipped))))
+    return SightFile(rows=tuple(rows), errors=tuple(errors), skipped_rows=tuple(sorted(set(skipped))),
+                     warnings=duplicate_warnings(rows))
+
+
+def duplicate_warnings(rows) -> tuple[str, ...]:
+    """One warning per sight that two or more rows hold (same body, UTC and Hs): it would count
+    as two observations in a fix, and make its ellipse look smaller than it is."""
+    from .angles import format_dm
+
+    seen: dict[tuple, list] = {}
+    for r in rows:
+        seen.setdefault((r.body, r.utc, round(r.hs_deg, 9)), []).append(r)
+    out = []
+    for (body, utc, hs), same in seen.items():
+        if len(same) > 1:
+            where = _lines_text([r.line if r.line is not None else r.row for r in same])
+            out.append(f"{where} hold the same sight ({body} at {utc:%Y-%m-%d %H:%M:%S} UTC, Hs "
+                       f"{format_dm(hs)}): it would count {len(same)} times in a fix; keep one")
+    return tuple(out)
 
 
 def with_dr(row: SightRow, lat_deg: float, lon_deg: float) -> SightRow:

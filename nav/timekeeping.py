@@ -15,19 +15,34 @@ import math
 import re
 from dataclasses import dataclass
 from datetime import datetime, timedelta, timezone
+from decimal import Decimal
 
 import numpy as np
 
-from .errors import NavInputError
+from .errors import NavInputError, OutOfRangeError
 
 UTC = timezone.utc
 ISO_EXAMPLE = "2026-03-20T18:42:10Z or 2026-03-20T15:42:10-03:00"
+RANGE_TEXT = "1900-01-01 to 2050-12-31 (UTC)"   # the ephemeris' supported range (nav.ephemeris)
 
 _ISO_RE = re.compile(
-    r"^\s*(?P<date>\d{4}-\d{2}-\d{2})[T ](?P<h>\d{2}):(?P<m>\d{2})(?::(?P<s>\d{2}(?:\.\d+)?))?"
+    r"^\s*(?P<date>(?P<year>\d{4,})-\d{2}-\d{2})[T ](?P<h>\d{2}):(?P<m>\d{2})"
+    r"(?::(?P<s>\d{2}(?:\.\d+)?))?"
     r"\s*(?P<zone>Z|UTC|[+\-\u2212]\d{2}(?::?\d{2})?)?\s*$",
     re.I,
 )
+
+
+def out_of_range(text: str, field: str) -> OutOfRangeError:
+    """The range error for a time whose year no calendar arithmetic here can hold (0000, 9999
+    with an offset, 10000 ...): the same words as :func:`nav.ephemeris.check_range`."""
+    return OutOfRangeError(f"'{text}' is outside the supported range {RANGE_TEXT}", field=field,
+                           example="2026-03-20T18:42:10Z")
+
+
+def _check_year(year_text: str, text: str, field: str) -> None:
+    if not 1 <= int(year_text) <= 9999:
+        raise out_of_range(text, field)
 
 
 def parse_utc(text: str, field: str = "utc") -> datetime:
@@ -39,14 +54,15 @@ def parse_utc(text: str, field: str = "utc") -> datetime:
     if not m.group("zone"):
         raise NavInputError(f"'{text}' has no time zone; add Z for UTC or an offset such as -03:00",
                             field=field, example=ISO_EXAMPLE)
+    _check_year(m.group("year"), s, field)
     try:
         date = datetime.strptime(m.group("date"), "%Y-%m-%d")
     except ValueError:
         raise NavInputError(f"'{text}' is not a real calendar date", field=field,
                             example=ISO_EXAMPLE) from None
     hour, minute = int(m.group("h")), int(m.group("m"))
-    sec = float(m.group("s") or 0.0)
-    if hour > 23 or minute > 59 or sec >= 60.0:
+    sec = Decimal(m.group("s") or 0)      # exact: 59.99999999999 stays below 60
+    if hour > 23 or minute > 59 or sec >= 60:
         raise NavInputError(f"'{text}' is not a real time of day", field=field, example=ISO_EXAMPLE)
     zone = m.group("zone").upper().replace("\u2212", "-")
     if zone in ("Z", "UTC"):
@@ -59,27 +75,49 @@ def parse_utc(text: str, field: str = "utc") -> datetime:
                                 example=ISO_EXAMPLE)
         offset = timedelta(hours=oh, minutes=om) * (-1 if zone[0] == "-" else 1)
     whole = int(sec)
-    micro = int(round((sec - whole) * 1e6))
-    local = date.replace(hour=hour, minute=minute, second=whole) + timedelta(microseconds=micro)
-    return (local - offset).replace(tzinfo=UTC)
+    micro = int(((sec - whole) * 1_000_000).to_integral_value())
+    try:
+        local = date.replace(hour=hour, minute=minute, second=whole) + timedelta(microseconds=micro)
+        return (local - offset).replace(tzinfo=UTC)
+    except OverflowError:                # 0001-01-01T00:00+01:00, 9999-12-31T23:59:59.9999999Z
+        raise out_of_range(s, field) from None
+
+
+def round_to_second(t: datetime) -> datetime:
+    """The one rounding rule of a time shown anywhere (screens, files, sheets): to the nearest
+    whole second, half a second up (common practice, no source); the time keeps its zone. A
+    label to the minute rounds this second again, half a minute up, so a sheet never disagrees
+    with the seconds a screen shows for the same sight."""
+    return (t + timedelta(microseconds=500_000)).replace(microsecond=0)
+
+
+def _utc_second(t: datetime) -> datetime:
+    return round_to_second(t.astimezone(UTC) if t.tzinfo is not None else t)
 
 
 def format_utc(t: datetime) -> str:
     """ISO 8601 in UTC to the second (rounded), with ``Z``: ``2026-03-20T18:42:10Z``."""
-    t = t.astimezone(UTC) + timedelta(microseconds=500_000)
-    return t.strftime("%Y-%m-%dT%H:%M:%SZ")
+    return _utc_second(t).strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+def format_date_hms(t: datetime) -> str:
+    """Date and time of day for a human surface (rounded): ``2026-03-20 18:42:10``."""
+    return _utc_second(t).strftime("%Y-%m-%d %H:%M:%S")
 
 
 def format_hms(t: datetime) -> str:
     """Time of day for a human surface: ``18:42:10 UTC``."""
-    t = t.astimezone(UTC) + timedelta(microseconds=500_000)
-    return t.strftime("%H:%M:%S") + " UTC"
+    return _utc_second(t).strftime("%H:%M:%S") + " UTC"
 
 
 def format_hm(t: datetime) -> str:
-    """Time of day to the minute (rounded), for labels: ``18:42``."""
-    t = t.astimezone(UTC) + timedelta(seconds=30)
-    return t.strftime("%H:%M")
+    """Time of day to the minute (rounded from the second shown), for labels: ``18:42``."""
+    return (_utc_second(t) + timedelta(seconds=30)).strftime("%H:%M")
+
+
+def format_date_hm(t: datetime) -> str:
+    """Date and time to the minute (rounded from the second shown): ``2026-03-20 18:42``."""
+    return (_utc_second(t) + timedelta(seconds=30)).strftime("%Y-%m-%d %H:%M")
 
 
 _DURATION_RE = re.compile(r"^\s*(?P<v>\d+(?:\.\d*)?)\s*(?P<u>s|sec|m|min|h|hr|d|day|days)?\s*$", re.I)
@@ -103,19 +141,77 @@ def parse_duration(text: str, field: str = "step") -> timedelta:
 
 
 _ZD_RE = re.compile(r"^\s*(?P<sign>[+\-\u2212])?\s*(?P<h>\d{1,2})(?::(?P<m>\d{2}))?\s*$")
+_ISO_LOOK = re.compile(r"^\s*(?:UTC|GMT|Z)?\s*(?P<sign>[+\-\u2212])\s*(?P<h>\d{1,2})(?::?(?P<m>\d{2}))?\s*$",
+                       re.I)
+ZD_EXAMPLE = "+3 (west of Greenwich), -2 (east) or -5:30"
+# Zone descriptions off the whole hour that are kept somewhere today (from the UTC offsets in
+# civil use, from memory: Newfoundland −3:30 and −2:30 in summer, Marquesas −9:30, Iran +3:30,
+# Afghanistan +4:30, India and Sri Lanka +5:30, Nepal +5:45, Myanmar and Cocos +6:30, Eucla +8:45,
+# central Australia +9:30 and +10:30 in summer). ZD is the offset's negative: UTC = ZT + ZD.
+FRACTIONAL_ZD_MIN = frozenset({+210, +150, +570, -210, -270, -330, -345, -390, -525, -570, -630})
+MAX_ZD_H = 12
+
+
+def format_zone_description(zd: timedelta | float) -> str:
+    """The one notation of a zone description: ``+3``, ``-2``, ``0``, ``-5:30`` (ASCII signs, so
+    that :func:`parse_zone_description` reads it back)."""
+    minutes = round((zd.total_seconds() if isinstance(zd, timedelta) else float(zd) * 3600.0) / 60)
+    if minutes == 0:
+        return "0"
+    sign = "+" if minutes > 0 else "-"
+    h, m = divmod(abs(minutes), 60)
+    return f"{sign}{h}" + (f":{m:02d}" if m else "")
+
+
+def _iso_note(text: str, sign: str, h: int, m: int) -> str:
+    """What an ISO-looking offset would be as a zone description (the opposite sign)."""
+    iso = timedelta(hours=h, minutes=m) * (-1 if sign in ("-", "\u2212") else 1)
+    return (f"'{text}' looks like an ISO 8601 offset, whose sign is the opposite of the trade's "
+            f"zone description (UTC = ZT + ZD): as an offset it is ZD "
+            f"{format_zone_description(-iso)}; as a zone description, type "
+            f"{format_zone_description(iso)} (no leading zero, no :00)")
 
 
 def parse_zone_description(text: str, field: str = "zone") -> timedelta:
-    """Zone description as the trade writes it (UTC = ZT + ZD): ``+3``, ``-5``, ``+5:30``, ``0``."""
-    m = _ZD_RE.match(str(text))
+    """Zone description as the trade writes it (UTC = ZT + ZD): ``+3``, ``-5``, ``0``, ``-5:30``.
+
+    Whole hours from −12 to +12, and the half and three-quarter hours kept today
+    (:data:`FRACTIONAL_ZD_MIN`). Something shaped like an ISO 8601 offset (``+03:00``,
+    ``-0530``, ``UTC+3``) is refused with the trade's sign rule spelt out, since the two
+    notations have opposite signs and a silent guess would put every time out by twice the zone.
+    """
+    s = str(text).strip()
+    m = _ZD_RE.match(s)
+    iso = _ISO_LOOK.match(s)
+    two_digit = iso is not None and len(iso.group("h")) == 2
+    if iso and (not m or s[:1].isalpha() or two_digit and iso.group("h").startswith("0")
+                or two_digit and iso.group("m") == "00"):
+        raise NavInputError(_iso_note(s, iso.group("sign"), int(iso.group("h")),
+                                      int(iso.group("m") or 0)), field=field, example=ZD_EXAMPLE)
     if not m:
-        raise NavInputError(f"'{text}' is not a zone description", field=field,
-                            example="+3 (west of Greenwich) or -2 (east)")
+        hint = ""
+        try:
+            hours = float(s.replace("\u2212", "-"))
+            if math.isfinite(hours) and abs(hours) <= 24:
+                hint = f": write {format_zone_description(hours)}"
+        except ValueError:
+            pass
+        raise NavInputError(f"'{text}' is not a zone description{hint}", field=field,
+                            example=ZD_EXAMPLE)
     hours, minutes = int(m.group("h")), int(m.group("m") or 0)
-    if minutes > 59 or hours * 60 + minutes > 14 * 60:
-        raise NavInputError(f"'{text}' is outside -14 to +14 hours", field=field, example="+3")
-    zd = timedelta(hours=hours, minutes=minutes)
-    return -zd if m.group("sign") in ("-", "\u2212") else zd
+    sign = -1 if m.group("sign") in ("-", "\u2212") else 1
+    total = sign * (hours * 60 + minutes)
+    if minutes > 59 or abs(total) > MAX_ZD_H * 60:
+        raise NavInputError(f"'{text}' is outside -12 to +12 hours", field=field, example=ZD_EXAMPLE)
+    if minutes and total not in FRACTIONAL_ZD_MIN:
+        kept = ", ".join(format_zone_description(x / 60) for x in sorted(FRACTIONAL_ZD_MIN))
+        note = ""
+        if -total in FRACTIONAL_ZD_MIN:
+            note = (f"; if it is an ISO 8601 offset (local = UTC + offset), the ZD is "
+                    f"{format_zone_description(-total / 60)}, since UTC = ZT + ZD")
+        raise NavInputError(f"'{text}' is not a zone kept anywhere: off the whole hour, the zones "
+                            f"in use are {kept}{note}", field=field, example=ZD_EXAMPLE)
+    return timedelta(minutes=total)
 
 
 # No bare "s" for slow: "12s" would read as 12 seconds slow to one navigator and 12 seconds to another.
@@ -156,8 +252,11 @@ class WatchTime:
 def zone_time_to_utc(watch_reading: datetime, zone_description: timedelta,
                      watch_fast: timedelta = timedelta(0)) -> WatchTime:
     """UTC from a naive watch reading kept on zone time: UTC = (watch − fast error) + ZD."""
-    zt = watch_reading.replace(tzinfo=None) - watch_fast
-    utc = (zt + zone_description).replace(tzinfo=UTC)
+    try:
+        zt = watch_reading.replace(tzinfo=None) - watch_fast
+        utc = (zt + zone_description).replace(tzinfo=UTC)
+    except OverflowError:
+        raise out_of_range(f"{watch_reading:%Y-%m-%d %H:%M:%S}", "zt") from None
     return WatchTime(utc=utc, zone_time=zt, zone_description=zone_description,
                      watch_fast=watch_fast)
 
@@ -165,6 +264,9 @@ def zone_time_to_utc(watch_reading: datetime, zone_description: timedelta,
 def parse_naive_time(text: str, field: str = "time") -> datetime:
     """A date and time with no zone (a watch reading): ``2026-03-20 15:42:10``."""
     s = str(text).strip()
+    year = re.match(r"^(\d{4,})-\d{2}-\d{2}[T ]", s)
+    if year:
+        _check_year(year.group(1), s, field)
     for fmt in ("%Y-%m-%dT%H:%M:%S", "%Y-%m-%d %H:%M:%S", "%Y-%m-%dT%H:%M", "%Y-%m-%d %H:%M"):
         try:
             return datetime.strptime(s, fmt)

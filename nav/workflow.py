@@ -17,7 +17,7 @@ from .fix import Fix, LOP, Sight, lop_at, solve_fix
 from .reduction import SightReductions, reduce_sights
 from .sailing import rhumb_line
 from .sightfile import SightRow
-from .timekeeping import to_datetime64
+from .timekeeping import format_hm, to_datetime64
 
 
 @dataclass(frozen=True)
@@ -31,6 +31,12 @@ class FixResult:
     dr_lat_deg: float
     dr_lon_deg: float
     rows: tuple[SightRow, ...]
+    used: tuple[int, ...] = ()
+    """The places, in the rows given, of the sights the fix used (`rows` holds those rows)."""
+    doubts: tuple = ()
+    """:class:`nav.plausibility.Doubt` of each sight judged doubtful (its `index` in the rows
+    given), left out of the fix unless it was asked to keep them."""
+    left_out: tuple[SightRow, ...] = ()
 
 
 def reduce_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> SightReductions:
@@ -54,6 +60,7 @@ def reduce_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> SightReduc
             lon_deg=np.array([r.dr_lon_deg for r in rows]), use_ap=use_ap)
     except NavInputError as err:
         if err.row is not None and 1 <= err.row <= len(rows):
+            err.line = rows[err.row - 1].line
             err.row = rows[err.row - 1].row
         raise
 
@@ -74,7 +81,7 @@ def refused_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> list:
         return []
     except NavInputError as err:
         if len(rows) == 1:
-            return [err if err.row is not None else err.at_row(rows[0].row)]
+            return [err if err.row is not None else err.at_row(rows[0].row).at_line(rows[0].line)]
     mid = len(rows) // 2
     return refused_rows(rows[:mid], use_ap=use_ap) + refused_rows(rows[mid:], use_ap=use_ap)
 
@@ -95,16 +102,58 @@ def run_between(row: SightRow, fix_row: SightRow) -> tuple[float | None, float]:
 
 def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
                   confidence: float = 0.95, reductions: SightReductions | None = None,
-                  runs: Sequence[tuple[float | None, float]] | None = None) -> FixResult:
+                  runs: Sequence[tuple[float | None, float]] | None = None,
+                  keep_doubtful: bool = False, names: Sequence[str] | None = None) -> FixResult:
     """The fix (or running fix) at the time of the last sight (or `fix_utc`).
 
     Each earlier sight is advanced to the fix time by the vessel's run: by default the run between
     the sight's DR and the DR at the fix time (the last row's), which is the run a DR track of
     course and speed says the vessel made; or `runs`, one (course_deg, speed_kn) per row, where
     the caller knows the legs sailed (a passage log whose DR was reset by a fix in between).
+
+    A sight its DR cannot explain (:mod:`nav.plausibility`) is left out, and said so in the fix's
+    warnings, unless `keep_doubtful`; a fix farther from its DR than the DR's age explains gets a
+    warning that names the distance (first among the fix's warnings).
     """
+    from dataclasses import replace
+
+    from .plausibility import DoubtfulSightsError, doubtful_sights, far_from_dr
+
     rows = tuple(rows)
     red = reductions if reductions is not None else reduce_rows(rows)
+    doubts = doubtful_sights(rows, red)
+    used = tuple(range(len(rows)))
+    notes = []
+    if doubts:
+        for d in doubts:
+            r = rows[d.index]
+            where = (names[d.index] if names is not None else
+                     f"line {r.line}" if r.line is not None else f"row {r.row}")
+            notes.append(f"{r.body} {r.utc:%H:%M:%S} ({where}) "
+                         + ("kept though doubtful: " if keep_doubtful else "left out, doubtful: ")
+                         + d.text())
+        if not keep_doubtful:
+            bad = {d.index for d in doubts}
+            used = tuple(i for i in used if i not in bad)
+            if len(used) < 2:
+                raise DoubtfulSightsError(
+                    f"a fix needs two or more sights, and {len(bad)} of the {len(rows)} are "
+                    "doubtful (each is named above with why)", notes, field="sights",
+                    example="mend them, or ask to use the doubtful sights")
+    kept = tuple(rows[i] for i in used)
+    if len(kept) != len(rows):
+        red = reduce_rows(kept)
+        runs = None if runs is None else [runs[i] for i in used]
+    result = _solve(kept, red, fix_utc, confidence, runs)
+    fix = result.fix
+    _, dist = rhumb_line(result.dr_lat_deg, result.dr_lon_deg, fix.lat_deg, fix.lon_deg)
+    far = far_from_dr(float(dist), kept[-1].dr_age_h, fix.kind)
+    warnings = ([far] if far else []) + list(fix.warnings) + notes
+    return replace(result, fix=replace(fix, warnings=tuple(warnings)), used=used, doubts=doubts,
+                   left_out=tuple(rows[i] for i in range(len(rows)) if i not in used))
+
+
+def _solve(rows, red, fix_utc, confidence, runs) -> FixResult:
     last = rows[-1]
     fix_utc = fix_utc or last.utc
     sights = []
@@ -113,7 +162,7 @@ def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
         sights.append(Sight(
             ho_deg=float(red.ho_deg[i]), gha_deg=float(red.gha_deg[i]), dec_deg=float(red.dec_deg[i]),
             utc=row.utc, body=row.body, sigma_arcmin=row.sigma_arcmin,
-            course_deg=course, speed_kn=speed, label=f"{row.body} {row.utc:%H:%M}"))
+            course_deg=course, speed_kn=speed, label=f"{row.body} {format_hm(row.utc)}"))
     fix = solve_fix(sights, last.dr_lat_deg, last.dr_lon_deg, fix_utc, confidence=confidence)
     lops = tuple(lop_at(s, row.dr_lat_deg, row.dr_lon_deg, fix_utc) for s, row in zip(sights, rows))
     return FixResult(fix=fix, reductions=red, sights=tuple(sights), lops=lops,

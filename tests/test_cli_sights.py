@@ -379,7 +379,8 @@ def test_reduce_human_output_shows_every_step(tmp_path, capsys, at_truth):
     blocks = out.split("\n\n")
     for i, (item, cells) in enumerate(zip(doc, rows)):
         block = blocks[i]
-        assert block.startswith(f"Sight {i + 1}: {item['body']}")
+        # issue 7 item 8: a sight is named by its file line (header line 1, one line a row)
+        assert block.startswith(f"Sight {i + 1} (line {i + 2}): {item['body']}")
         for label in ("Hs", "index corr.", "dip", "Ha", "refraction", "Ho", "GHA", "Dec", "DR",
                       "LHA", "Hc", "Zn", "intercept"):
             assert re.search(rf"^  {re.escape(label)}\s", block, re.M), (label, block)
@@ -446,7 +447,10 @@ def _row(**over):
 LATER = "2026-03-20T10:05:00Z"
 BAD_CASES = {
     # name: (header, rows, row number, column, a word of the reason)
-    "hs over 90": (HEADER, [_row(), _row(utc=LATER, hs="91 12.3")], 2, "hs", "outside"),
+    "hs over 90": (HEADER, [_row(), _row(utc=LATER, hs="91 12.3")], 2, "hs", "above 90"),
+    # issue 7 item 4: an artificial horizon's double altitude goes to 180°, no further
+    "hs over 180": (HEADER + ["horizon"], [_row() + ["sea"], _row(utc=LATER, hs="181") +
+                                           ["artificial"]], 2, "hs", "outside"),
     "minutes of 60": (HEADER, [_row(hs="34 60.0")], 1, "hs", "below 60"),
     "lat minutes of 61": (HEADER, [_row(dr_lat="41 61.0 N")], 1, "dr_lat", "below 60"),
     "unknown body": (HEADER, [_row(), _row(utc=LATER, body="Vgea")], 2, "body", "Vega"),
@@ -475,7 +479,8 @@ def test_bad_input_exit_2_names_row_and_column(tmp_path, capsys, case, command):
     code, out, err = run(capsys, command, path)
     assert code == 2
     assert out == ""                                   # nothing computed (contract)
-    assert f"row {row_no}" in err and f"field '{column}'" in err, err
+    # issue 7 item 8: rows are named by the file's line (the header is line 1)
+    assert f"line {row_no + 1}" in err and f"field '{column}'" in err, err
     assert reason in err and "for example" in err, err
     assert "Traceback" not in err
 
@@ -511,7 +516,7 @@ def test_every_bad_cell_is_reported_not_only_the_first(tmp_path, capsys):
     code, out, err = run(capsys, "fix", _write(tmp_path / "bad.csv", HEADER, rows))
     assert code == 2 and out == ""
     for row_no, column in ((2, "utc"), (2, "body"), (3, "hs"), (3, "dr_lat"), (3, "eye_height_m")):
-        assert re.search(rf"row {row_no}, field '{column}'", err), (row_no, column, err)
+        assert re.search(rf"line {row_no + 1}, field '{column}'", err), (row_no, column, err)
     assert "5 problem(s)" in err and "--skip-bad-rows" in err
 
 
@@ -525,8 +530,8 @@ def test_skip_bad_rows_computes_from_the_good_rows_and_names_the_rest(tmp_path, 
     assert code == 2 and out == ""                              # refused without the option
     code, out, err = run(capsys, "fix", path, "--json", "--skip-bad-rows")
     assert code == 0
-    assert "row 4, field 'body'" in err and "row 7, field 'hs'" in err
-    assert "skipped row(s) 4, 7" in err
+    assert "line 5, field 'body'" in err and "line 8, field 'hs'" in err
+    assert "skipped line(s) 5, 8" in err
     doc = json.loads(out)
     assert [s["row"] for s in doc["sights"]] == [1, 2, 3, 5, 6, 8, 9]
     when, lat, lon, _ = truth[-1]
@@ -540,9 +545,9 @@ def test_skip_bad_rows_also_skips_sights_the_corrections_refuse(tmp_path, capsys
     bad = [rows[0], [low[k] for k in HEADER]] + rows[2:]
     path = _write(tmp_path / "low.csv", HEADER, bad)
     code, out, err = run(capsys, "reduce", path, "--json")
-    assert code == 2 and out == "" and "row 2, field 'hs'" in err
+    assert code == 2 and out == "" and "line 3, field 'hs'" in err
     code, out, err = run(capsys, "reduce", path, "--json", "--skip-bad-rows")
-    assert code == 0 and "skipped row(s) 2" in err
+    assert code == 0 and "skipped line(s) 3" in err
     assert [d["row"] for d in json.loads(out)] == [1, 3, 4, 5, 6, 7]
 
 
@@ -583,4 +588,4 @@ def test_as_a_process_from_another_directory(tmp_path, star_case):
     _write(work / "cells.csv", HEADER, [_row(), _row(utc=LATER, hs="34 60.5")])
     proc = _process("reduce", "cells.csv", "--json", cwd=work)
     assert proc.returncode == 2 and proc.stdout == ""
-    assert "row 2, field 'hs'" in proc.stderr and "Traceback" not in proc.stderr
+    assert "line 3, field 'hs'" in proc.stderr and "Traceback" not in proc.stderr

@@ -99,7 +99,7 @@ def test_nav_import_twice_refuses_the_second_and_names_the_rows(tmp_path, capsys
     capsys.readouterr()
     assert main(["import", str(EVENING), "--log", str(log)]) == 2
     err = capsys.readouterr().err
-    assert "already logged" in err and "evening-stars.csv row 1 repeats e0003" in err
+    assert "already logged" in err and "evening-stars.csv line 2 repeats e0003" in err
     assert err.count("\n") == 1 and "Traceback" not in err
     assert log.read_bytes() == before
 
@@ -117,7 +117,7 @@ def test_the_shell_refuses_a_repeated_sight_and_a_repeated_import(tmp_path):
         assert "imported" in out
         n = len(st.log.entries)
         out = run_lines(st, f"import {EVENING}")
-        assert "already logged" in out and "row 1 repeats" in out and len(st.log.entries) == n
+        assert "already logged" in out and "line 2 repeats" in out and len(st.log.entries) == n
     finally:
         log.close()
     assert len(load_log(tmp_path / "shell.jsonl").entries) == n     # strict reload: all well

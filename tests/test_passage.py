@@ -464,8 +464,8 @@ def test_import_refuses_a_partly_bad_file(tmp_path, capsys, make_log):
     assert main(["import", str(src), "--log", str(path)]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 4 and "Traceback" not in "".join(err)        # one line per problem + total
-    assert "row 2, field 'body'" in err[0] and "row 2, field 'hs'" in err[1]
-    assert "row 3, field 'utc'" in err[2] and "3 problem(s)" in err[3]
+    assert "line 3, field 'body'" in err[0] and "line 3, field 'hs'" in err[1]
+    assert "line 4, field 'utc'" in err[2] and "3 problem(s)" in err[3]
     assert path.read_bytes() == before                              # nothing logged
     new = tmp_path / "never.jsonl"
     assert main(["import", str(src), "--log", str(new), "--new", "--vessel", "V",
@@ -478,7 +478,7 @@ def test_import_refuses_a_partly_bad_file(tmp_path, capsys, make_log):
                                       "2026-07-02T21:03:00Z,Spica,-1 00,4,,\n")
     assert main(["import", str(low), "--log", str(path)]) == 2
     err = capsys.readouterr().err.strip().splitlines()
-    assert len(err) == 2 and "row 2" in err[0] and "1 problem(s)" in err[1]
+    assert len(err) == 2 and "line 3" in err[0] and "1 problem(s)" in err[1]
     assert path.read_bytes() == before
 
 

@@ -214,12 +214,14 @@ def test_scale_bar_length_is_a_round_number_within_the_sheet(span_nmi):
 
 
 def test_times_are_rounded_to_the_minute():
-    # HH:MM to the nearest minute (common practice, no source); 29.9 s down, 30 s up
+    # HH:MM to the nearest minute of the second a screen shows (one rule, issue 7 item 11: half
+    # up, common practice, no source): 29.4 s is shown 29 s and goes down; 29.5 s is shown 30 s
+    # and goes up, with the date
     from nav.plotting import when
 
-    t = T(2026, 12, 31, 23, 59, 29, 900000, tzinfo=UTC)
+    t = T(2026, 12, 31, 23, 59, 29, 400000, tzinfo=UTC)
     assert when(t) == "23:59" and when(t, "day") == "31 Dec 23:59"
-    t = T(2026, 12, 31, 23, 59, 30, tzinfo=UTC)
+    t = T(2026, 12, 31, 23, 59, 29, 500000, tzinfo=UTC)
     assert when(t) == "00:00" and when(t, "date") == "01 Jan 2027"
     zoned = T(2026, 6, 2, 9, 10, tzinfo=timezone(timedelta(hours=-3)))
     assert when(zoned) == "12:10"                                   # shown in UTC

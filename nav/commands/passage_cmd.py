@@ -32,7 +32,7 @@ from datetime import datetime
 from pathlib import Path
 
 from .. import CAUTION
-from ..errors import NavInputError
+from ..errors import NavInputError, printable
 
 DEMO_NAME = "demo-azores-madeira"
 DEMO_OUT = "demo_output"
@@ -370,12 +370,15 @@ def run_export(args) -> int:
 # ---------------------------------------------------------------- nav import
 
 def _refuse(args, errors) -> None:
-    for err in errors:
-        print(f"nav import: {args.file}: {err}", file=sys.stderr)
-    rows = sorted({e.row for e in errors if e.row is not None})
+    from ..sightfile import summarise_errors
+
+    for line in summarise_errors(errors):
+        print(f"nav import: {printable(args.file)}: {line}", file=sys.stderr)
+    lines = sorted({e.line if e.line is not None else e.row for e in errors
+                    if e.line is not None or e.row is not None})
     raise _Reported(f"{len(errors)} problem(s) in {args.file}"
-                    + (f" (row{'s' if len(rows) > 1 else ''} {', '.join(map(str, rows[:20]))})"
-                       if rows else "") + "; nothing was logged", field="file",
+                    + (f" (line{'s' if len(lines) > 1 else ''} {', '.join(map(str, lines[:20]))})"
+                       if lines else "") + "; nothing was logged", field="file",
                     example="mend the file, then import again")
 
 
@@ -399,19 +402,28 @@ def run_import(args) -> int:
     sf = read_sight_file(args.file)
     if sf.errors:
         _refuse(args, list(sf.errors))
+    for warning in sf.warnings:
+        print(f"nav import: {printable(args.file)}: warning: {warning}", file=sys.stderr)
     rows = list(sf.rows)
     try:
-        reduce_rows(rows)
+        red = reduce_rows(rows)
     except NavInputError:
         errors = refused_rows(rows)
         if not errors:
             raise
         _refuse(args, errors)
+    from ..plausibility import doubtful_sights
+
+    doubts = doubtful_sights(rows, red)   # logged as typed, but said (nav fix leaves them out)
     entries = entries_from_rows(rows, Path(args.file).name)
     log = new_log(args.log, args.vessel, args.title) if args.new else PassageLog.open(args.log)
     for p in log.problems:             # a torn line or a cut-off import set aside on opening
         if p.severity == "warning":
             print(f"nav import: caution: {args.log}: {p}", file=sys.stderr)
+    for d in doubts:
+        r = rows[d.index]
+        print(f"nav import: {printable(args.file)}: warning: line {r.line}, {r.body}: doubtful, "
+              f"left out of fixes unless asked: {d.text()}", file=sys.stderr)
     try:
         _append(args, log, rows, entries)
     except BaseException:

@@ -6,7 +6,8 @@ import json
 import sys
 
 from .. import CAUTION
-from ..errors import NavInputError
+from ..errors import NavInputError, printable
+from ..sightfile import summarise_errors
 
 SKIP_HELP = "compute from the valid rows and list the bad ones (default: refuse a partly bad file)"
 
@@ -42,6 +43,9 @@ def register(sub) -> None:
     f.add_argument("--average-runs", action="store_true",
                    help="replace each run of 3+ sights of one body within 15 min by its averaged "
                         "sight (a flagged shot left out), as `nav series` shows")
+    f.add_argument("--use-doubtful", action="store_true",
+                   help="also use sights that their DR cannot explain (left out by default; "
+                        "each is named with the reason and any slip that explains it)")
     f.set_defaults(func=run_fix)
 
 
@@ -49,18 +53,26 @@ class _Reported(NavInputError):
     """Errors already printed one per line; the CLI adds a summary line."""
 
 
+def _where(errors) -> str:
+    """``line(s) 3, 5`` of the errors (rows where a line is not known)."""
+    lines = sorted({e.line if e.line is not None else e.row for e in errors
+                    if e.line is not None or e.row is not None})
+    return f"line(s) {', '.join(map(str, lines))}"
+
+
 def _load(args):
     from ..sightfile import read_sight_file
 
     sf = read_sight_file(args.file, skip_bad_rows=args.skip_bad_rows)
-    for err in sf.errors:
-        print(f"nav {args.command}: {args.file}: {err}", file=sys.stderr)
+    for line in summarise_errors(sf.errors):
+        print(f"nav {args.command}: {printable(args.file)}: {line}", file=sys.stderr)
     if sf.errors and not args.skip_bad_rows:
         raise _Reported(f"{len(sf.errors)} problem(s) in {args.file}; nothing was computed "
                         "(mend them, or use --skip-bad-rows)", field="file")
-    if sf.skipped_rows:
-        print(f"nav {args.command}: skipped row(s) {', '.join(map(str, sf.skipped_rows))}",
-              file=sys.stderr)
+    if sf.errors:
+        print(f"nav {args.command}: skipped {_where(sf.errors)}", file=sys.stderr)
+    for warning in sf.warnings:
+        print(f"nav {args.command}: {printable(args.file)}: warning: {warning}", file=sys.stderr)
     if not sf.rows:
         raise NavInputError("no valid sight left", field="file", example="utc,body,hs,dr_lat,dr_lon")
     return sf.rows
@@ -76,13 +88,13 @@ def _reduce(args, rows, use_ap=False):
         errors = refused_rows(rows, use_ap=use_ap)
         if not errors:
             raise
-    for err in errors:
-        print(f"nav {args.command}: {args.file}: {err}", file=sys.stderr)
+    for line in summarise_errors(errors):
+        print(f"nav {args.command}: {printable(args.file)}: {line}", file=sys.stderr)
     if not args.skip_bad_rows:
         raise _Reported(f"{len(errors)} problem(s) in {args.file}; nothing was computed "
                         "(mend them, or use --skip-bad-rows)", field="file")
     bad = {err.row for err in errors}
-    print(f"nav {args.command}: skipped row(s) {', '.join(map(str, sorted(bad)))}", file=sys.stderr)
+    print(f"nav {args.command}: skipped {_where(errors)}", file=sys.stderr)
     rows = tuple(r for r in rows if r.row not in bad)
     if not rows:
         raise NavInputError("no valid sight left", field="file", example="utc,body,hs,dr_lat,dr_lon")
@@ -95,23 +107,30 @@ def _setting_notes(row) -> dict:
 
 
 def run_reduce(args) -> int:
+    from ..plausibility import doubtful_sights
     from ..render import reduction_dict, reduction_lines, sight_title
     rows, red = _reduce(args, _load(args), use_ap=args.ap)
+    doubts = {d.index: d for d in doubtful_sights(rows, red if not args.ap else
+                                                   _reduce(args, rows)[1])}
     if args.json:
         out = []
         for i, row in enumerate(rows):
             d = reduction_dict(red.sight(i), row=row.row)
+            d["line"] = row.line
             d.update(dr_lat_deg=round(row.dr_lat_deg, 7), dr_lon_deg=round(row.dr_lon_deg, 7),
                      dr_given=row.dr_given)
+            d["doubtful"] = doubts[i].as_dict() if i in doubts else None
             out.append(d)
         json.dump(out, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
         return 0
     for i, row in enumerate(rows):
         s = red.sight(i)
-        print(sight_title(s, i + 1, row.row))
+        print(sight_title(s, i + 1, row.row, line=row.line))
         for line in reduction_lines(s, **_setting_notes(row)):
             print(line)
+        if i in doubts:
+            print(f"  !! DOUBTFUL (left out of a fix unless asked): {doubts[i].text()}")
         print()
     print(CAUTION)
     return 0
@@ -119,6 +138,7 @@ def run_reduce(args) -> int:
 
 def run_fix(args) -> int:
     from ..fixchain import chain_fixes
+    from ..plausibility import DoubtfulSightsError
 
     if not (0.0 < args.confidence < 1.0):
         raise NavInputError("--confidence must be between 0 and 1", field="confidence",
@@ -133,7 +153,14 @@ def run_fix(args) -> int:
 
         runs = check_runs(rows, red)
         rows, red = rows_with_runs_averaged(rows, runs), None
-    chain = chain_fixes(rows, confidence=args.confidence, reductions=red)
+    try:
+        chain = chain_fixes(rows, confidence=args.confidence, reductions=red,
+                            keep_doubtful=args.use_doubtful)
+    except DoubtfulSightsError as err:
+        for note in err.notes:
+            print(f"nav fix: {printable(args.file)}: {note}", file=sys.stderr)
+        raise _Reported(err.reason + "; --use-doubtful computes the fix with them",
+                        field=err.field) from None
     if runs and not args.json:
         for r in runs:
             left = [s.row for s in r.shots if s.flagged]
@@ -183,15 +210,25 @@ def _one_fix(args, c, n_fixes: int) -> dict:
                        **({"known": c.ep, "known_label": "EP (DR + current)"} if c.ep else {}))
     if args.json:
         sights = []
+        doubts = {d.index: d for d in result.doubts}
         for i, row in enumerate(result.rows):
             d = reduction_dict(result.reductions.sight(i), row=row.row)
+            d["line"] = row.line
             d["residual_nmi"] = round(fix.residuals_nmi[i], 4)
             d["flagged"] = bool(fix.flags[i])
             d["advanced_nmi"] = round(result.lops[i].advanced_nmi, 4)
+            k = result.used[i]
+            d["doubtful"] = doubts[k].as_dict() if k in doubts else None
             if c.label:
                 d["fix"] = c.label
             sights.append(d)
-        fd = fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg)
+        left_out = []
+        for k in sorted(set(doubts) - set(result.used)):
+            row = c.rows[k]
+            left_out.append({"row": row.row, "line": row.line, "body": row.body,
+                             "utc": f"{row.utc:%Y-%m-%dT%H:%M:%S}Z", **doubts[k].as_dict()})
+        fd = {**fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
+              "left_out": left_out}
         fd.update(chain_keys(c))
         if bias is not None:
             from .fix_extras import bias_keys

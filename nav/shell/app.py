@@ -18,7 +18,8 @@ from pathlib import Path
 from .. import CAUTION, __version__
 from ..errors import NavError, NavInputError
 from ..timekeeping import UTC
-from .state import Cancelled, ShellState, status_line
+from .common import Cancelled
+from .state import ShellState, status_line
 
 LOGS_DIR = "sight_logs"
 DEFAULT_VESSEL = "unnamed vessel"
@@ -78,9 +79,13 @@ def opening_lines(st: ShellState) -> list[str]:
     head = f"passage '{st.title}', vessel {st.vessel}: " + (", ".join(parts) or "no entries yet")
     out = [head]
     try:
+        from ..timekeeping import format_date_hm
         from .state import position_brief
 
-        out.append(f"now: {position_brief(st.passage.where(st.now()))}")
+        t, eid = st.passage_now()
+        when = "now" if eid is None else \
+            f"at the latest entry, {eid}, {format_date_hm(t)} UTC (not the clock)"
+        out.append(f"{when}: {position_brief(st.passage.where(t))}")
     except NavError:
         pass
     out.append("type help for the commands, help COMMAND for one; quit (or Ctrl-D) leaves")
@@ -193,9 +198,10 @@ def make_history(path: Path | None, say):
 
     class _Pausable:
         paused = False
+        keep = None                       # a line -> whether it goes into the history
 
         def append_string(self, string: str) -> None:
-            if not self.paused:
+            if not self.paused and (self.keep is None or self.keep(string)):
                 super().append_string(string)
 
     path = Path(path) if path is not None else history_path()
@@ -209,37 +215,55 @@ def make_history(path: Path | None, say):
 
 def _run_interactive(log, vessel, say, out, err, history_file, clock, refresh_interval,
                      cwd) -> int:
+    """The prompt session. A line is checked on Enter by its command's parser; a refused line
+    gets its error in full above the prompt (wrapped to the terminal's width) and comes back at
+    the prompt to be mended; Ctrl-C clears it. Refused lines are not kept in the history."""
     from prompt_toolkit import PromptSession
 
-    from .complete import FieldCompleter, FieldValidator, LineValidator, ShellCompleter
+    from .complete import FieldCompleter, ShellCompleter
 
     holder: dict = {"st": None}
     history = make_history(history_file, say)
     line_completer = ShellCompleter(lambda: holder["st"])
-    line_validator = LineValidator(lambda: holder["st"])
     toolbar = lambda: status_line(holder["st"])  # noqa: E731
     session = PromptSession(history=history, bottom_toolbar=toolbar,
                             refresh_interval=refresh_interval or 0,
                             validate_while_typing=False, complete_while_typing=True)
 
+    def width() -> int:
+        return session.output.get_size().columns
+
     def plain_ask(message: str) -> str:
         history.paused = True
         try:
-            return session.prompt(message, validator=None, completer=None)
+            return session.prompt(message, completer=None)
         finally:
             history.paused = False
 
     def ask(label, default, check, kind):
+        """One answer of a guided entry; a refused answer is shown in full and kept to mend."""
         message = f"  {label}" + (f" [{default}]" if default else "") + ": "
+        typed = ""
         history.paused = True
         try:
-            text = session.prompt(message, completer=FieldCompleter(kind),
-                                  validator=FieldValidator(check, default is not None))
+            while True:
+                text = session.prompt(message, default=typed, completer=FieldCompleter(kind))
+                if not text.strip():
+                    if default is not None:
+                        return default
+                    holder["st"].error("a value is needed (Ctrl-C gives up the entry)")
+                    continue
+                try:
+                    if check is not None:
+                        check(text)
+                    return text
+                except NavInputError as e:
+                    holder["st"].error(str(e), kept=ShellState.KEPT_ANSWER)
+                    typed = text
         except (KeyboardInterrupt, EOFError):
             raise Cancelled() from None
         finally:
             history.paused = False
-        return text if text.strip() else (default or "")
 
     title = None
     try:
@@ -253,17 +277,25 @@ def _run_interactive(log, vessel, say, out, err, history_file, clock, refresh_in
     if plog is None:
         return EXIT_INPUT
     st = holder["st"] = ShellState(plog, out=out, err=err, clock=clock, ask=ask,
-                                   interactive=True)
+                                   interactive=True, width=width)
+    history.keep = lambda line: st.check(line) is None
     try:
         say(*opening_lines(st))
+        kept = ""                          # a refused line, back at the prompt to be mended
         while True:
             try:
-                line = session.prompt("nav> ", completer=line_completer,
-                                      validator=line_validator)
+                line = session.prompt("nav> ", default=kept, completer=line_completer)
             except KeyboardInterrupt:
+                kept = ""
                 continue
             except EOFError:
                 break
+            why = st.check(line)
+            if why:
+                st.error(why, kept=True)
+                kept = line
+                continue
+            kept = ""
             if not st.dispatch(line):
                 break
     finally:

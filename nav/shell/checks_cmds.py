@@ -125,6 +125,16 @@ def run_current(st, req) -> None:
     st.say("  the EP is the DR with this current allowed for from then on (`where`, `current`)")
 
 
+def entry_text(kind: str, d) -> str:
+    """One line for the log listing: a current or a watch comparison."""
+    from .times import watch_text
+
+    if kind == "current":
+        return (f"current set {d['set_deg']:05.1f}\u00b0, drift {d['drift_kn']:g} kn from "
+                f"{d['utc'][11:16]} ({d.get('source', 'entered')})")
+    return f"watch {watch_text(d['watch_error_s'])} against the {d['reference']}"
+
+
 # ---------------------------------------------------------------- hooks
 
 def where_lines(st, utc) -> list[str]:
@@ -244,7 +254,7 @@ def parse_average(args, line, ctx) -> Request:
 
 
 def run_average(st, req) -> None:
-    from .handlers import sight_summary
+    from .entries import sight_summary
 
     runs, entries = _runs(st)
     ids = req.args["ids"]

@@ -1,15 +1,14 @@
-"""prompt_toolkit pieces of the shell: the completer and the validators (from the registry).
+"""prompt_toolkit pieces of the shell: the completers (from the registry).
 
-The completer asks :func:`nav.shell.suggest.suggest`; the line validator runs the command's
-parser on Enter (the same parse the run does), so an invalid line shows its error and is not run.
+The completer asks :func:`nav.shell.suggest.suggest`. A line is checked on Enter by
+:meth:`nav.shell.state.ShellState.check` (the command's own parser, the same parse the run does)
+in :mod:`nav.shell.app`, which shows a refusal in full above the prompt.
 """
 
 from __future__ import annotations
 
 from prompt_toolkit.completion import Completer, Completion
-from prompt_toolkit.validation import ValidationError, Validator
 
-from ..errors import NavInputError
 from .suggest import _match, _values, bodies, suggest
 
 
@@ -48,39 +47,3 @@ class FieldCompleter(Completer):
             found = _values(self.kind or "", text, 0)
         for value, start, meta in found:
             yield Completion(value, start_position=start - len(text), display_meta=meta or None)
-
-
-class LineValidator(Validator):
-    """Refuses (on Enter) a line whose command parser refuses it, showing why."""
-
-    def __init__(self, state_ref):
-        self._state = state_ref
-
-    def validate(self, document) -> None:
-        st = self._state()
-        if st is None:
-            return
-        msg = st.check(document.text)
-        if msg:
-            st.last_error = msg
-            raise ValidationError(cursor_position=len(document.text), message=msg)
-
-
-class FieldValidator(Validator):
-    """One answer of a guided entry, checked by its field parser (empty: the default)."""
-
-    def __init__(self, check, has_default: bool):
-        self.check, self.has_default = check, has_default
-
-    def validate(self, document) -> None:
-        text = document.text
-        if not text.strip():
-            if self.has_default:
-                return
-            raise ValidationError(cursor_position=0, message="a value is needed (Ctrl-C gives up)")
-        if self.check is None:
-            return
-        try:
-            self.check(text)
-        except NavInputError as err:
-            raise ValidationError(cursor_position=len(text), message=str(err)) from None

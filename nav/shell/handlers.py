@@ -7,18 +7,19 @@ refuses is never logged), appends to the log, and only then confirms and shows t
 from __future__ import annotations
 
 import textwrap
+from datetime import timedelta
 from types import MappingProxyType
 
 from .. import CAUTION
-from ..angles import format_arcmin, format_dm, format_lat, format_lon, norm180
+from ..angles import format_arcmin, format_lat, format_lon, norm180
 from ..errors import NavInputError
 from ..logbook import Entry
-from ..timekeeping import parse_utc
-from .times import parse_at, parse_zt, watch_text, zone_text
+from ..timekeeping import format_date_hms, format_hms, parse_utc
+from .times import parse_at, parse_zt, passage_time, watch_text, zone_text
+from .entries import dr_summary, setting_summary, sight_summary
 from .words import OPTIONS
-from .state import Cancelled, iso_z
+from .common import Cancelled, iso_z
 
-LIMB_SHORT = {"lower": "lower limb", "upper": "upper limb", "center": "centre"}
 MAX_WARNING = 200
 
 
@@ -43,21 +44,6 @@ def setting_lines(s) -> list[str]:
     ]
 
 
-_SETTING_WORDS = (  # field -> how the summary shows it
-    ("eye_height_m", lambda v: f"eye {v:.2f} m"),
-    ("index_error_arcmin", lambda v: f"IE {format_arcmin(v)}"),
-    ("watch_error_s", lambda v: f"watch {watch_text(v)}"),
-    ("zone_description_h", lambda v: f"zone {zone_text(v)}"),
-    ("temperature_c", lambda v: f"temp {v:g} °C"),
-    ("pressure_hpa", lambda v: f"pressure {v:g} hPa"),
-    ("horizon", lambda v: f"horizon {v}"),
-)
-
-
-def setting_summary(data) -> str:
-    return ", ".join(show(data[name]) for name, show in _SETTING_WORDS if name in data)
-
-
 def run_set(st, req) -> None:
     if req.args.get("show"):
         st.say(f"Settings in force ({st.title}):", *setting_lines(st.settings))
@@ -65,27 +51,37 @@ def run_set(st, req) -> None:
         return
     e = st.append(req.entry)
     st.say(f"logged {e.id}: setting {setting_summary(e.data)}")
+    if "temperature_c" in e.data or "pressure_hpa" in e.data:
+        from ..fields import weather_warnings
+
+        s = st.settings
+        st.say(*(f"  ! {w}" for w in weather_warnings(s.temperature_c, s.pressure_hpa)))
 
 
 # ---------------------------------------------------------------- dr, course, speed
 
-def dr_summary(data) -> str:
-    bits = []
-    if "lat_deg" in data:
-        bits.append(f"{format_lat(data['lat_deg'])} {format_lon(data['lon_deg'])}"
-                    + (f" ({data['position_basis'].upper()})" if data.get("position_basis",
-                                                                          "dr") != "dr" else ""))
-    if "course_deg" in data:
-        bits.append(f"course {data['course_deg']:05.1f}°")
-    if "speed_kn" in data:
-        bits.append(f"speed {data['speed_kn']:g} kn")
-    return ", ".join(bits)
+def fixes_across(st, t) -> list[str]:
+    """The fixes whose sights were run (advanced) across `t`: the first sight before `t`, the
+    fix after it. A change of course or speed dated `t` comes after they were worked."""
+    out = []
+    for f in st.passage.fix_entries:
+        times = [parse_utc(x["utc"]) for x in map(st.lookup, f["sight_ids"]) if x is not None]
+        if times and min(times) < t < parse_utc(f["utc"]):
+            out.append(f.id)
+    return out
 
 
 def run_dr(st, req) -> None:
     e = st.append(req.entry)
     what = "DR" if "lat_deg" in e.data else "course/speed"
     st.say(f"logged {e.id}: {what} {dr_summary(e.data)}", f"  time: {req.time.explain}")
+    if "course_deg" in e.data or "speed_kn" in e.data:
+        run = fixes_across(st, req.time.utc)
+        if run:
+            st.say(*st.wrap(f"  caution: {' '.join(run)} {'was' if len(run) == 1 else 'were'} "
+                            "run on other legs: their sights were advanced across this time with "
+                            "the course and speed logged before; strike and run fix again to "
+                            "use this change", "    "))
     leg = st.passage.leg_at(req.time.utc)
     if "lat_deg" in e.data and (leg is None or leg.course_deg is None or not leg.speed_kn):
         st.say("  no course and speed in force: the DR stays here until you give them "
@@ -122,18 +118,13 @@ def time_explain(e) -> str:
     """How a logged sight's UTC came from what was typed."""
     t = parse_utc(e["utc"])
     if e.get("time_source") != "watch":
-        return f"UTC {t:%Y-%m-%d %H:%M:%S}" + (f" (typed {e['time_text']})"
+        return f"UTC {format_date_hms(t)}" + (f" (typed {e['time_text']})"
                                                  if e.get("time_text") else "")
     fast = e["watch_error_s"]
     watch = ("watch error none" if not fast else
              f"watch {abs(fast):g} s {'fast, subtracted' if fast > 0 else 'slow, added'}")
     return (f"watch {e.get('time_text', '?')}, {watch}; ZD {zone_text(e['zone_description_h'])}, "
-            f"UTC = ZT + ZD = {t:%Y-%m-%d %H:%M:%S}")
-
-
-def sight_summary(data) -> str:
-    limb = f" {LIMB_SHORT[data['limb']]}" if data.get("limb") else ""
-    return f"{data['body']}{limb} Hs {format_dm(data['hs_deg'])} at {data['utc'][11:19]} UTC"
+            f"UTC = ZT + ZD = {format_date_hms(t)}")
 
 
 def reduction_report(st, e) -> list[str]:
@@ -175,9 +166,25 @@ def run_sight(st, req) -> None:
                f"`show {e.id}`")
         return
     show_reduction(st, e)
+    say_doubt(st, e)
     from .checks_cmds import after_sight
 
     after_sight(st, e)          # issue 10: the run this sight completes, checked
+
+
+def say_doubt(st, e) -> None:
+    """Say why a logged sight is probably wrong, if its DR cannot explain it (nav.plausibility)."""
+    from ..plausibility import doubtful_sights
+    from ..workflow import reduce_rows
+
+    try:
+        row = st.passage.reduction_view(e).sight_row(e)
+        doubts = doubtful_sights([row], reduce_rows([row]))
+    except NavInputError:
+        return
+    for d in doubts:
+        st.say(*textwrap.wrap(f"!! doubtful, left out of fixes unless asked (fix ... use-doubtful):"
+                              f" {d.text()}", 96, initial_indent="  ", subsequent_indent="     "))
 
 
 def _answer_time(st, text: str):
@@ -189,7 +196,7 @@ def _answer_time(st, text: str):
 
 def guided_sight(st) -> None:
     """`sight` alone: one field at a time, defaults from the state; then the one-line form."""
-    from ..fields import check_limb, parse_body, parse_limb
+    from ..fields import check_hs_horizon, check_limb, parse_body, parse_limb
 
     s = st.settings
     st.say("New sight (Enter takes the value in brackets; Ctrl-C gives up):")
@@ -203,8 +210,10 @@ def guided_sight(st) -> None:
                   lambda t: _answer_time(st, t), "time")
     words = when.strip().split(None, 1)
     when_words = when.strip() if words[0].lower() in ("zt", "at") else f"at {when.strip()}"
-    hs = st.ask("Hs (34 12.3, 34°12.3′ or 34.205)", None,
-                lambda t: OPTIONS["hs"].parse(t, "hs"), None)
+    def _hs(text):
+        check_hs_horizon(OPTIONS["hs"].parse(text, "hs")["hs_deg"], s.horizon)
+
+    hs = st.ask("Hs (34 12.3, 34°12.3′ or 34.205)", None, _hs, None)
     parts.append(hs.strip())
     if limb and limb != "lower":
         parts += ["limb", limb]
@@ -222,9 +231,7 @@ def guided_sight(st) -> None:
         parts += ["note", note]
     line = " ".join(parts)
     st.say(f"as one line: {line}")
-    from .registry import parse_line
-
-    parsed = parse_line(line, st)
+    parsed = st.commands.parse_line(line, st)
     if parsed is None or parsed[1].args.get("guided"):
         raise Cancelled()
     run_sight(st, parsed[1])
@@ -250,21 +257,54 @@ def fix_entry(fix, sight_ids) -> dict:
     return entry
 
 
+FIX_WINDOW = timedelta(minutes=60)   # `fix` alone: the sights this long before the latest unused
+
+
+def _default_sights(st, start) -> list[str]:
+    """`fix` alone: the sights not used by a fix yet within FIX_WINDOW before the latest of them;
+    `fix from TIME`: those from TIME on. Says which it took, and which it left out."""
+    unused = st.passage.sights_since_last_fix()
+    example = "fix e0004 e0005 e0007, or fix from 08:30"
+    if not unused:
+        raise NavInputError("no sight stands that a fix has not used yet; a fix needs two or "
+                            "more (or name them)", field="sights", example=example)
+    last_e, last_r = unused[-1]
+    if start is None:
+        cut = last_r.utc - FIX_WINDOW
+        rule = (f"the sights not used by a fix within {FIX_WINDOW.seconds // 60} min before the "
+                f"latest of them, {last_e.id} at {format_hms(last_r.utc)}")
+    else:
+        cut = start.utc
+        rule = f"the sights not used by a fix from {start.explain} on"
+    took = [e.id for e, r in unused if r.utc >= cut]
+    left = [e.id for e, r in unused if r.utc < cut]
+    if len(took) < 2:
+        raise NavInputError(f"{len(took) or 'no'} sight{'s' if len(took) != 1 else ''} "
+                            f"({' '.join(took) or 'none'}) among {rule}; a fix needs two or more: "
+                            "name them, or give a start time for a running fix", field="sights",
+                            example=example)
+    st.say(*st.wrap(f"took {' '.join(took)}: {rule}"))
+    if left:
+        st.say(*st.wrap(f"  left out, earlier: {' '.join(left)} (for a running fix with them, "
+                        "name the sights or give a start time: fix from TIME)", "    "))
+    return took
+
+
 def run_fix(st, req) -> None:
     from ..render import fix_lines
 
-    ids = req.args["ids"]
-    if not ids:
-        ids = [e.id for e, _ in st.passage.sights_since_last_fix()]
-        if len(ids) < 2:
-            raise NavInputError(f"{len(ids) or 'no'} sight{'s' if len(ids) != 1 else ''} since "
-                                "the last fix; a fix needs two or more (or name them)",
-                                field="sights", example="fix e0004 e0005 e0007")
-        st.say(f"from the sights not used by a fix yet: {' '.join(ids)}")
+    ids = req.args["ids"] or _default_sights(st, req.args.get("from"))
+    from ..plausibility import DoubtfulSightsError
     from .checks_cmds import after_fix, fix_ids_with_averages
 
     ids = fix_ids_with_averages(st, ids)   # issue 10: an averaged sight, only when agreed
-    result, entries = st.passage.fix_from(ids)
+    try:
+        result, entries = st.passage.fix_from(ids,
+                                              keep_doubtful=req.args.get("keep_doubtful", False))
+    except DoubtfulSightsError as err:
+        st.say(*(f"  {note}" for note in err.notes))
+        raise NavInputError(err.reason + "; `fix ... use-doubtful` computes it with them",
+                            field=err.field, example="fix e0004 e0005 use-doubtful") from None
     fix = result.fix
     bias_lines = []
     if req.args.get("bias"):                    # issue 10: with one shared altitude error
@@ -294,7 +334,7 @@ def run_fix(st, req) -> None:
 # ---------------------------------------------------------------- where, almanac, note
 
 def where_now(st, t=None) -> None:
-    t = t or parse_at(st.now().strftime("%Y-%m-%dT%H:%M:%SZ"), st)
+    t = t or passage_time(st)
     try:
         w = carried(st.passage, t.utc)
     except NavInputError as err:
@@ -318,12 +358,25 @@ def carried(passage, t):
                             "enter a new DR") from None
 
 
+def stale_anchor(st, w) -> list[str]:
+    """A caution when the position rests on a fix whose sights were since corrected or struck."""
+    from .entries import stale_note
+
+    if w.basis not in ("fix", "running fix"):
+        return []
+    fix = st.lookup(w.anchor.entry_id)
+    note = stale_note(st, fix) if fix is not None else None
+    return [f"  caution: the {w.basis} {fix.id} {note}; strike it and run fix again"] if note \
+        else []
+
+
 def run_where(st, req) -> None:
     w = carried(st.passage, req.time.utc)
     hours = w.age.total_seconds() / 3600.0
-    st.say(f"Where at {req.time.explain}:",
+    st.say(*st.wrap(f"Where at {req.time.explain}:"),
            f"  position     {format_lat(w.lat_deg)}  {format_lon(w.lon_deg)}",
-           f"  basis        {w.describe()}" + (f" (anchor {w.anchor.entry_id})"))
+           f"  basis        {w.describe()}" + (f" (anchor {w.anchor.entry_id})"),
+           *(x for line in stale_anchor(st, w) for x in st.wrap(line, "    ")))
     from .checks_cmds import where_lines
 
     st.say(*where_lines(st, req.time.utc))
@@ -343,6 +396,16 @@ def run_almanac(st, req) -> None:
     t64 = np.array([to_datetime64(req.time.utc)])
     lines = almanac_lines(al.almanac([req.args["body"]], t64), t64[0])
     st.say(f"time: {req.time.explain}", *lines)
+
+
+def run_name(st, req) -> None:
+    """`vessel NAME` / `title TEXT`: logged as a setting; alone, shows the one in force."""
+    what, label = req.args["what"], {"vessel": "vessel", "title": "passage title"}[req.args["what"]]
+    if req.entry is None:
+        st.say(f"{label}: {getattr(st, what)}")
+        return
+    e = st.append(req.entry)
+    st.say(f"logged {e.id}: setting {label} {e[what]}")
 
 
 def run_note(st, req) -> None:

@@ -19,6 +19,7 @@ import textwrap
 from .. import CAUTION
 from ..angles import format_lat, format_lon
 from ..errors import NavInputError
+from ..timekeeping import format_date_hms
 
 
 def _caution(st) -> None:
@@ -69,7 +70,7 @@ def run_latitude(st, req) -> None:
     if req.args["log"]:
         what = "Polaris" if work.method == "Polaris" else f"{work.body}, {work.method}"
         _log_note(st, f"latitude {format_lat(work.lat_deg)} from {e.id} ({what}) at "
-                      f"{work.utc:%Y-%m-%d %H:%M:%S} UTC: a line of position, not a fix",
+                      f"{format_date_hms(work.utc)} UTC: a line of position, not a fix",
                   work.utc)
     _caution(st)
 
@@ -87,6 +88,6 @@ def run_longitude(st, req) -> None:
     st.say(*noon_longitude_lines(work, t.explain))
     if req.args["log"]:
         _log_note(st, f"longitude {format_lon(work.lon_deg)} from the Sun's meridian passage "
-                      f"timed at {t.utc:%Y-%m-%d %H:%M:%S} UTC: a line of position, not a fix",
+                      f"timed at {format_date_hms(t.utc)} UTC: a line of position, not a fix",
                   t.utc)
     _caution(st)

@@ -13,8 +13,9 @@ from dataclasses import dataclass, field
 from datetime import timedelta
 
 from ..errors import NavInputError
-from ..fields import check_limb, parse_body, parse_sight_utc
-from .times import TimeRead, now_time, parse_at, parse_time_options
+from ..fields import check_hs_horizon, check_limb, parse_body, parse_sight_utc
+from .times import (TimeRead, now_time, parse_at, parse_time_options, parse_zt,
+                    passage_time)
 from .words import (CORRECTABLE, DR_WORDS, EXPORT_FORMATS, NUMERIC_START, OPTIONS,
                     PLOT_EXTENSIONS, SETTING_WORDS, SIGHT_WORDS, Token, option_fields,
                     body_fields, hs_fields, position_fields, split_words)
@@ -131,29 +132,47 @@ def parse_sight(args, line, ctx) -> Request:
     extra = option_fields(opts)
     entry["limb"] = check_limb(entry["body"], extra.pop("limb", None))
     entry.update(extra)
+    check_hs_horizon(entry["hs_deg"], entry.get("horizon") or ctx.settings.horizon)
     t = parse_time_options(opts, ctx, sight=True, required=True)
     entry.update(t.entry_fields())
     entry["source"] = "shell"
     return Request("sight", entry=entry, time=t)
 
 
+USE_DOUBTFUL = "use-doubtful"
+
+
 def parse_fix(args, line, ctx) -> Request:
-    bias = bool(args) and args[-1].text.lower() == "bias"     # issue 10: `fix ... bias`
-    args = args[:-1] if bias else args
+    keep = [a for a in args if a.text.lower() == USE_DOUBTFUL and not a.quoted]
+    bias = [a for a in args if a.text.lower() == "bias" and not a.quoted]   # issue 10
+    args = [a for a in args if a not in keep and a not in bias]
+    if args and args[0].text.lower() == "from" and not args[0].quoted:
+        rest = " ".join(w for w in line[args[0].end:].split() if w.lower() not in (USE_DOUBTFUL, "bias"))
+        if not rest:
+            raise NavInputError("give the time of the first sight to take", field="from",
+                                example="fix from 08:30, or fix from zt 06:30")
+        words = rest.split(None, 1)
+        start = (parse_zt(words[1], ctx, "from") if words[0].lower() == "zt" and len(words) == 2
+                 else parse_at(rest, ctx, "from"))
+        return Request("fix", args={"ids": [], "from": start, "keep_doubtful": bool(keep),
+                                          "bias": bool(bias)})
     ids = [_entry_id(a.text, ctx, "sights", kinds=("sight",)) for a in args]
-    if len(set(ids)) != len(ids):
-        raise NavInputError("a sight is named twice", field="sights", example="fix e0004 e0005")
+    twice = sorted({i for i in ids if ids.count(i) > 1})
+    if twice:
+        raise NavInputError(f"{' and '.join(twice)} {'is' if len(twice) == 1 else 'are'} named "
+                            "twice; one observation counts once in a fix", field="sights",
+                            example="fix e0004 e0005")
     for sid in ids:
         if ctx.lookup(sid) is None:
             raise NavInputError(f"{sid} is struck; it cannot go into a fix", field="sights",
                                 example="the ids of sights that stand")
-    return Request("fix", args={"ids": ids, "bias": bias})
+    return Request("fix", args={"ids": ids, "keep_doubtful": bool(keep), "bias": bool(bias)})
 
 
 def parse_where(args, line, ctx) -> Request:
     pos, opts = split_words(line, args, ("at", "zt"), command="where")
     _no_more(pos, "where", "where at 21:30:00")
-    return Request("where", time=parse_time_options(opts, ctx) or now_time(ctx))
+    return Request("where", time=parse_time_options(opts, ctx) or passage_time(ctx))
 
 
 def parse_almanac(args, line, ctx) -> Request:
@@ -233,6 +252,9 @@ def parse_correct(args, line, ctx) -> Request:
                             "name a field and its new value", field="field",
                             example=f"fields of a {cur.kind}: " + ", ".join(words))
     changes = option_fields(opts)
+    if cur.kind == "sight" and ("hs_deg" in changes or "horizon" in changes):
+        check_hs_horizon(changes.get("hs_deg", cur["hs_deg"]),
+                         changes.get("horizon") or cur.get("horizon") or ctx.settings.horizon)
     t = parse_time_options(opts, ctx, sight=cur.kind == "sight")
     if t is not None:
         changes.update(t.entry_fields() if cur.kind == "sight" else
@@ -367,6 +389,23 @@ def parse_longitude(args, line, ctx) -> Request:
                             "give the time of the Sun's meridian passage", field="at",
                             example=example)
     return Request("longitude", time=t, args={"log": log})
+
+
+def parse_name(what: str):
+    """``vessel NAME`` / ``title TEXT``: the rest of the line as typed (alone: show it)."""
+    def parse(args, line, ctx) -> Request:
+        if not args:
+            return Request(what, args={"what": what})
+        text = line[args[0].start:].strip()
+        if args[0].quoted and len(args) == 1:
+            text = args[0].text.strip()
+        limit = 120 if what == "vessel" else 200
+        if not text or len(text) > limit:
+            raise NavInputError(f"give the {what}" if not text else
+                                f"the {what} is {len(text)} characters long; the limit is {limit}",
+                                field=what, example=f"{what} Kestrel Dawn")
+        return Request(what, entry={"kind": "setting", what: text}, args={"what": what})
+    return parse
 
 
 def parse_plain(name: str, example: str):

@@ -5,52 +5,24 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from ..angles import format_lat, format_lon
 from ..errors import NavInputError
-from .handlers import (dr_summary, reduction_report, setting_summary, show_reduction,
-                       sight_summary, time_explain, trial_reduce)
-from .state import QUIT, iso_z
+from ..timekeeping import format_date_hms, format_hm, parse_utc
+from .entries import changed_labels, changes, field_lines, sight_summary, stale_note, summary
+from .handlers import reduction_report, say_doubt, show_reduction, time_explain, trial_reduce
+from .common import QUIT, iso_z
 
 MAX_IMPORT_ERRORS_SHOWN = 30
 
 
 # ---------------------------------------------------------------- log, show
 
+KIND_WORD = {"passage": "passage log", "setting": "setting", "dr": "DR", "sight": "sight",
+             "fix": "fix", "note": "note", "strike": "strike", "correct": "correction",
+             "repair": "repair", "compass_check": "compass check"}
+
+
 def entry_summary(e) -> str:
-    d = e.data
-    if e.kind == "setting":
-        return setting_summary(d)
-    if e.kind == "dr":
-        return dr_summary(d)
-    if e.kind == "sight":
-        return sight_summary(d)
-    if e.kind == "fix":
-        size = (f", ellipse {d['ellipse_semi_major_nmi']:.1f} × {d['ellipse_semi_minor_nmi']:.1f}"
-                " nmi" if "ellipse_semi_major_nmi" in d else "")
-        warn = f", {len(d.get('warnings', ()))} warning(s)" if d.get("warnings") else ""
-        return (f"{d['fix_kind'].replace('_', ' ')} {format_lat(d['lat_deg'])} "
-                f"{format_lon(d['lon_deg'])} from {' '.join(d['sight_ids'])}{size}{warn}")
-    if e.kind == "note":
-        text = " ".join(d["text"].split())
-        return text if len(text) <= 60 else text[:57] + "..."
-    if e.kind == "compass_check":
-        from .sky_cmds import compass_summary
-
-        return compass_summary(d)
-    if e.kind == "strike":
-        return f"strikes {d['target']}: {d['reason']}"
-    if e.kind == "correct":
-        return f"corrects {d['target']}: {d['reason']}"
-    if e.kind == "repair":
-        return f"torn line {d['torn_line']} set aside in {d['side_file']}"
-    if e.kind == "current":
-        return (f"current set {d['set_deg']:05.1f}\u00b0, drift {d['drift_kn']:g} kn from "
-                f"{d['utc'][11:16]} ({d.get('source', 'entered')})")
-    if e.kind == "watch_check":
-        from .times import watch_text
-
-        return f"watch {watch_text(d['watch_error_s'])} against the {d['reference']}"
-    return ""
+    return summary(e)
 
 
 def _marks(st, e) -> str:
@@ -59,14 +31,18 @@ def _marks(st, e) -> str:
     chain = st.log.history_of(e.id)[1:]
     marks = [f"corrected by {c.id}" for c in chain if c.kind == "correct"]
     marks += [f"STRUCK by {c.id}" for c in chain if c.kind == "strike"]
+    if e.kind == "fix" and st.lookup(e.id) is not None:
+        stale = stale_note(st, e)
+        if stale:
+            marks.append(f"! {stale}")
     return f"  [{'; '.join(marks)}]" if marks else ""
 
 
 def _when(e) -> str:
     utc = e.get("utc")
     if utc:
-        return f"{utc[:10]} {utc[11:19]}"
-    return f"(logged {e.logged_utc[11:16]})"
+        return format_date_hms(parse_utc(utc))
+    return f"(logged {format_hm(parse_utc(e.logged_utc))})"
 
 
 def run_log(st, req) -> None:
@@ -80,43 +56,47 @@ def run_log(st, req) -> None:
         st.say(f"(the latest {len(shown)} of {len(entries)} entries; `log all` lists them all)")
     for raw in shown:
         cur = st.lookup(raw.id) or raw
-        st.say(f"{raw.id}  {raw.kind:<8} {_when(cur):<20} {entry_summary(cur)}{_marks(st, raw)}")
+        kind = raw.kind.split("_")[0]           # compass_check: compass
+        st.say(f"{raw.id}  {kind:<8} {_when(cur):<20} {entry_summary(cur)}{_marks(st, raw)}")
 
 
-def _value(v) -> str:
-    if isinstance(v, tuple):
-        return " ".join(map(str, v))
-    return str(v)
+def _logged(e) -> str:
+    return f"{format_date_hms(parse_utc(e.logged_utc))} UTC"
 
 
 def run_show(st, req) -> None:
     eid = req.args["id"]
     raw = st.raw(eid)
     if raw.kind in ("strike", "correct"):
-        st.say(f"{eid}: {raw.kind} of {raw['target']}, logged {raw.logged_utc}: {raw['reason']}")
+        st.say(f"{eid}: {KIND_WORD[raw.kind]} of {raw['target']}, logged {_logged(raw)}: "
+               f"{raw['reason']}")
         eid, raw = raw["target"], st.raw(raw["target"])
     cur = st.lookup(eid)
     shown = cur or raw
-    st.say(f"{eid}  {raw.kind}, logged {raw.logged_utc}" + ("" if cur or raw.kind in (
+    kind = KIND_WORD.get(raw.kind, raw.kind)
+    if raw.kind == "fix":
+        kind = shown["fix_kind"].replace("_", " ")
+    st.say(f"{eid}  {kind}, logged {_logged(raw)}" + ("" if cur or raw.kind in (
         "passage", "repair") else "  -- STRUCK"))
-    for k, v in shown.data.items():
-        if k not in ("id", "kind", "logged_utc"):
-            st.say(f"  {k:<22}{_value(v)}")
+    st.say(*field_lines({k: v for k, v in shown.data.items()
+                         if not (raw.kind == "fix" and k == "fix_kind")}))
     history = st.log.history_of(eid)[1:] if raw.kind not in ("passage",) else []
     if history:
         st.say("  history:")
         before = raw.data
         for h in history:
             if h.kind == "strike":
-                st.say(f"    {h.id} {h.logged_utc}  struck: {h['reason']}")
+                st.say(f"    {h.id} {_logged(h)}  struck: {h['reason']}")
                 continue
             after = h["replacement"]
-            changed = [f"{k} {_value(before.get(k, '(none)'))} -> {_value(after.get(k, '(none)'))}"
-                       for k in sorted(set(before) | set(after))
-                       if k not in ("id", "kind", "logged_utc") and before.get(k) != after.get(k)]
-            st.say(f"    {h.id} {h.logged_utc}  corrected: {h['reason']}")
-            st.say(*(f"      {c}" for c in changed))
+            st.say(f"    {h.id} {_logged(h)}  corrected: {h['reason']}")
+            st.say(*(f"      {c}" for c in changes(before, after)))
             before = after
+    if raw.kind == "fix" and cur is not None:
+        stale = stale_note(st, cur)
+        if stale:
+            st.say(*st.wrap(f"  caution: this fix {stale}; strike it and run fix again to use "
+                            "the sights as they now stand", "    "))
     if raw.kind == "sight" and cur is not None:
         st.say(f"  time: {time_explain(cur)}")
         show_reduction(st, cur)
@@ -151,7 +131,7 @@ def run_correct(st, req) -> None:
     used = _fixes_using(st, eid) if kind == "sight" else []
     e = st.log.correct(eid, req.args["reason"], changes)
     st.changed()
-    names = ", ".join(sorted({k for k in changes if k not in ("kind",)}))
+    names = changed_labels(k for k in changes if k != "kind")
     st.say(f"logged {e.id}: correction of {eid} ({names}): {req.args['reason']}")
     if req.time is not None:
         st.say(f"  time: {req.time.explain}")
@@ -221,6 +201,10 @@ def run_plot(st, req) -> None:
     track = [ExportPoint(t, lat, lon, _export_point_kind(b), "")
              for t, lat, lon, b in st.passage.track_points()]
     fixes, _ = points_from_log(st.log)
+    if not track and not fixes:
+        raise NavInputError("nothing to plot yet: the log holds no DR position and no fix; "
+                            "enter a DR, or take sights and run fix", field="plot",
+                            example="dr 41 12.5 N 032 07.1 W course 245 speed 6.5 at 18:00")
     out = Path(path) if path else _next_to_log(st, "-passage.png")
     from .checks_cmds import ep_track
 
@@ -268,13 +252,17 @@ def run_export(st, req) -> None:
 # ---------------------------------------------------------------- import
 
 def _refuse_file(st, path: str, errors) -> None:
-    for err in errors[:MAX_IMPORT_ERRORS_SHOWN]:
-        st.say(f"  {path}: {err}")
-    if len(errors) > MAX_IMPORT_ERRORS_SHOWN:
-        st.say(f"  ... and {len(errors) - MAX_IMPORT_ERRORS_SHOWN} more")
-    rows = sorted({e.row for e in errors if e.row is not None})
+    from ..sightfile import summarise_errors
+
+    said = summarise_errors(errors)
+    for line in said[:MAX_IMPORT_ERRORS_SHOWN]:
+        st.say(f"  {path}: {line}")
+    if len(said) > MAX_IMPORT_ERRORS_SHOWN:
+        st.say(f"  ... and {len(said) - MAX_IMPORT_ERRORS_SHOWN} more")
+    lines = sorted({e.line if e.line is not None else e.row for e in errors
+                    if e.line is not None or e.row is not None})
     raise NavInputError(f"{len(errors)} problem(s) in {path}" +
-                        (f" (rows {', '.join(map(str, rows[:20]))})" if rows else "") +
+                        (f" (lines {', '.join(map(str, lines[:20]))})" if lines else "") +
                         "; nothing was imported", field="file", example="mend the rows, then import")
 
 
@@ -286,6 +274,8 @@ def run_import(st, req) -> None:
     sf = read_sight_file(path)
     if sf.errors:
         _refuse_file(st, path, list(sf.errors))
+    for warning in sf.warnings:
+        st.say(f"  warning: {warning}")
     rows = list(sf.rows)
     try:
         reduce_rows(rows)
@@ -308,6 +298,7 @@ def run_import(st, req) -> None:
             red = reduce_rows([st.passage.sight_row(e)]).sight(0)
             st.say(f"  {e.id}  {sight_summary(e.data)}  intercept {float(red.intercept_nmi):+.1f}"
                    f" nmi, Zn {float(red.zn_deg):05.1f}°" + ("  !" if red.warnings else ""))
+            say_doubt(st, e)
         except NavInputError as err:
             st.say(f"  {e.id}  {sight_summary(e.data)}  not reduced: {err.reason}")
 
@@ -315,8 +306,9 @@ def run_import(st, req) -> None:
 # ---------------------------------------------------------------- help, quit
 
 def run_help(st, req) -> None:
-    from .registry import ALIASES, COMMANDS, COMMANDS_LIST, TOPICS
-
+    table = st.commands
+    ALIASES, COMMANDS, COMMANDS_LIST, TOPICS = (table.aliases, table.by_name, table.list,
+                                                table.topics)
     topic = req.args["topic"]
     if topic is None:
         width = max(len(c.name) for c in COMMANDS_LIST)

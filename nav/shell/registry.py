@@ -1,23 +1,25 @@
-"""The one registry of shell commands: help, completion and dispatch all read it.
+"""The one registry of shell commands, as data: help, completion and dispatch all read it.
 
 Each :class:`Command` names its syntax, a summary, its parser (:mod:`nav.shell.parse`), its
-handler (:mod:`nav.shell.handlers` or :mod:`nav.shell.records`), its option words and what its
-first words are (for completion), with examples that the tests run.
+handler (:mod:`nav.shell.handlers`, :mod:`nav.shell.records` ...), its option words and what its
+first words are (for completion), with examples that the tests run. To add a command, add a row
+to COMMANDS_LIST. Dispatch lives beside it (:mod:`nav.shell.dispatch`); no handler imports this
+module: a handler that needs the table reads ``st.commands``.
 """
 
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass
 from typing import Callable
 
-from ..errors import NavInputError
 from . import checks_cmds, handlers, meridian_cmds, records, sky_cmds
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
                     parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
-                    parse_noon, parse_note, parse_plain, parse_plot, parse_set, parse_show,
-                    parse_sight, parse_speed, parse_strike, parse_where)
-from .words import CORRECTABLE, DR_WORDS, SETTING_WORDS, SIGHT_WORDS, tokenize
+                    parse_name, parse_noon, parse_note, parse_plain, parse_plot, parse_set,
+                    parse_show, parse_sight, parse_speed, parse_strike, parse_where)
+from .common import LIVE_HOURS
+from .dispatch import CommandTable
+from .words import CORRECTABLE, DR_WORDS, SETTING_WORDS, SIGHT_WORDS
 
 
 @dataclass(frozen=True)
@@ -71,17 +73,29 @@ COMMANDS_LIST = (
              "the reduction is worked from the DR at the sight's time"),
             ("sight Vega 34 12.3 at 22:55:00", "sight Sun 52 08.4 limb upper zt 11:42:05",
              "sight Rigil Kentaurus 18 44.0 at 2026-06-14T22:58:30Z note low, hazy")),
-    Command("fix", "fix [SIGHT-ID ...] [bias]",
-            "fix or running fix from sights (default: those not used by a fix yet)",
+    Command("fix", "fix [SIGHT-ID ... | from TIME] [use-doubtful] [bias]",
+            "fix or running fix: the latest group of sights, the sights named, or those from a "
+            "time on",
             parse_fix, handlers.run_fix, (), "sight",
-            ("earlier sights are advanced along the DR track to the time of the last one",
+            (f"fix alone: the sights not used by a fix yet within "
+             f"{handlers.FIX_WINDOW.seconds // 60} min before the latest of "
+             "them (the shell says which it took and which it left out)",
+             "fix from TIME: the sights not used by a fix yet from TIME on (a running fix over "
+             "a longer run); or name the sights, each once",
+             "earlier sights are advanced along the DR track to the time of the last one",
              "the fix is logged with its sights, error ellipse and warnings",
-             "bias: also estimate one altitude error shared by all the sights (index error, "
-             "height of eye, abnormal dip or refraction); needs bodies all round the horizon",
-             "after a fix, the set and drift since the previous fix is shown"),
-            ("fix", "fix e0004 e0005 e0007", "fix bias")),
+             "a sight its DR cannot explain (50 nmi + 2 kn for each hour since the DR was set) "
+             "is left out and named with the likely slip; use-doubtful keeps it in"),
+            ("fix", "fix e0004 e0005 e0007", "fix from 08:30", "fix e0004 e0005 use-doubtful",
+              "fix bias")),
     Command("where", f"where [{TIME}]", "where the vessel is, and on what basis",
-            parse_where, handlers.run_where, ("at", "zt"), None, (), ("where", "where at 23:30")),
+            parse_where, handlers.run_where, ("at", "zt"), None,
+            (f"without a time: now, while the latest entry is at most {LIVE_HOURS} h old; else "
+             "(a passage "
+             "entered after the fact) the time of the latest entry, and the shell says which",
+             "a position that rests on a fix whose sights were since corrected or struck is "
+             "marked, with how far the fix moves computed again"),
+            ("where", "where at 23:30")),
     Command("noon", "noon [DATE]",
             "predict local apparent noon from the DR: UTC, zone time, watch, Hc, Hs to preset",
             parse_noon, meridian_cmds.run_noon, (), None,
@@ -102,7 +116,7 @@ COMMANDS_LIST = (
              "Polaris: at any LHA, solved exactly from its GHA and Dec at the DR longitude",
              "log: append the latitude as a note (a line of position, not a fix; the DR is "
              "not moved)"),
-            ("latitude e0005", "latitude e0009 log")),
+            ("latitude e0005", "latitude e0007 log")),
     Command("longitude", f"longitude ({TIME}) [log]",
             "longitude from the timed instant of the Sun's meridian passage",
             parse_longitude, meridian_cmds.run_longitude, ("at", "zt"), None,
@@ -210,12 +224,20 @@ COMMANDS_LIST = (
              "correct e0003 position 41 14.0 N 032 05.0 W -- plotted wrong")),
     Command("note", "note TEXT", "log a note (time: now)", parse_note, handlers.run_note,
             (), "text", (), ("note reefed at dusk",)),
+    Command("vessel", "vessel [NAME]", "set the vessel's name (logged); `vessel` alone shows it",
+            parse_name("vessel"), handlers.run_name, (), "text",
+            ("the name as typed, to the end of the line (up to 120 characters); the log's "
+             "header keeps the name it was opened with",), ("vessel Kestrel Dawn",)),
+    Command("title", "title [TEXT]", "set the passage's title (logged); `title` alone shows it",
+            parse_name("title"), handlers.run_name, (), "text",
+            ("the title as typed, to the end of the line (up to 200 characters)",),
+            ("title Azores to Biscay, June",)),
     Command("plot", "plot [fix [ID] | passage] [FILE.png | FILE.pdf] [replace]",
             "draw a fix's plotting sheet (default: the latest fix) or the passage",
             parse_plot, records.run_plot, (), "plot",
             ("without a file the plot goes next to the log, as <log>-<fix id>.png or "
              "<log>-passage.png; an existing file is refused unless the last word is replace",),
-            ("plot", "plot fix e0009 sheet.pdf", "plot passage sheet.png replace")),
+            ("plot", "plot fix e0008 sheet.pdf", "plot passage sheet.png replace")),
     Command("export", "export gpx|geojson|csv [FILE] [replace]",
             "export fixes and track (GPX, GeoJSON) or the sights (CSV)",
             parse_export, records.run_export, (), "format",
@@ -233,49 +255,38 @@ COMMANDS_LIST = (
     Command("quit", "quit", "leave the shell (also: exit, Ctrl-D)",
             parse_plain("quit", "quit"), records.run_quit, (), None, (), ("quit",), ("exit",)),
 )
-COMMANDS = {c.name: c for c in COMMANDS_LIST}
-ALIASES = {a: c.name for c in COMMANDS_LIST for a in c.aliases}
-
 TOPICS = {
     "time": (
         "TIME, wherever a command takes one:",
         "  at 2026-06-14T20:55:00Z    ISO 8601 with its zone (Z, or an offset such as -03:00)",
-        "  at 20:55:00                UTC time of day: the date is that of the latest entry with "
-        "a time,",
+        "  at 20:55:00                UTC time of day, on the date that puts it nearest the "
+        "latest",
+        "                             entry with a time (00:03 typed after 23:58 is the next "
+        "day),",
         "                             else today's UTC date (the shell says which it used)",
-        "  zt [DATE] HH:MM[:SS]       zone time read on the watch, with the zone and watch error",
+        "  zt [DATE] HH:MM[:SS]       zone time read on the watch (a bare time: the zone date "
+        "nearest",
+        "                             the latest entry, as for at), with the zone and watch error",
         "                             set by `set zone` and `set watch`:",
         "                             ZT = watch − watch error (a fast watch is subtracted),",
         "                             UTC = ZT + ZD (ZD + in west longitude: ZD +3 for 45° W)",
+        "                             ZD from -12 to +12, written +3, -10 or -5:30; an ISO offset",
+        "                             such as +03:00 has the opposite sign and is refused",
         "Entries other than sights are for now (UTC) when no time is given; a sight needs its time.",
+        "`where` without a time answers for now, or for the latest entry when the log is more "
+        f"than {LIVE_HOURS} h behind the clock (a passage entered after the fact).",
     ),
     "position": (
         "Positions (LAT LON): latitude first, then longitude, each with its hemisphere:",
         "  41 12.5 N 032 07.1 W    41°12.5′N 32°07.1′W    N41 12.5 W032 07.1",
         "  or signed decimal degrees (north +, east +): 41.2083 -32.118",
         "  a comma may separate them: 41 12.5 N, 032 07.1 W",
+        "Degrees and minutes without N/S or E/W are refused (a lost W is thousands of miles);",
+        "a longitude first, or a W in the latitude, is named as a swap.",
     ),
 }
 
 
-def find_command(word: str) -> Command:
-    key = word.lower()
-    key = ALIASES.get(key, key)
-    if key in COMMANDS:
-        return COMMANDS[key]
-    names = list(COMMANDS) + list(ALIASES)
-    near = difflib.get_close_matches(key, names, n=2, cutoff=0.6)
-    hint = f"; did you mean {' or '.join(near)}?" if near else "; type help for the list"
-    raise NavInputError(f"unknown command '{word[:40]}'{hint}", field="command",
-                        example="sight, fix, where, help")
-
-
-def parse_line(line: str, ctx) -> tuple[Command, Request] | None:
-    """A typed line -> its command and the request it makes (None for a blank line).
-
-    Raises NavInputError (field, example) for a line that is not valid."""
-    tokens = tokenize(line)
-    if not tokens:
-        return None
-    cmd = find_command(tokens[0].text)
-    return cmd, cmd.parse(tokens[1:], line, ctx)
+TABLE = CommandTable(COMMANDS_LIST, TOPICS)      # dispatch (nav.shell.dispatch) reads it
+COMMANDS, ALIASES = TABLE.by_name, TABLE.aliases
+find_command, parse_line = TABLE.find, TABLE.parse_line

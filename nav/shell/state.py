@@ -8,27 +8,19 @@ from __future__ import annotations
 
 import re
 import sys
-from datetime import datetime
+import textwrap
+from datetime import datetime, timedelta
 from typing import Callable
 
 from ..angles import format_arcmin, format_lat, format_lon
-from ..errors import NavError, NavInputError
+from ..errors import NavError
 from ..logbook import Entry, PassageLog
 from ..passage import Passage, now_utc
-from ..timekeeping import UTC, parse_utc
+from ..timekeeping import format_date_hm, parse_utc
+from .common import LIVE_HOURS, QUIT, Cancelled, iso_z  # noqa: F401 - for the shell's parts
+from .dispatch import check, run_line
 
-
-class Cancelled(Exception):
-    """A guided entry given up (Ctrl-C, or the end of the input): nothing is logged."""
-
-
-QUIT = object()
 _CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
-
-
-def iso_z(t: datetime) -> str:
-    """An aware datetime as ISO 8601 UTC with Z, to the microsecond (what the log stores)."""
-    return t.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%S.%fZ")
 
 
 class ShellState:
@@ -36,25 +28,37 @@ class ShellState:
 
     def __init__(self, log: PassageLog, *, out=None, err=None,
                  clock: Callable[[], datetime] | None = None,
-                 ask: Callable | None = None, interactive: bool = False):
+                 ask: Callable | None = None, interactive: bool = False,
+                 width: Callable[[], int] | None = None, commands=None):
         self.log = log
         self.out = out if out is not None else sys.stdout
         self.err = err if err is not None else self.out
         self._clock = clock or now_utc
         self._ask = ask
         self.interactive = interactive
+        self._width = width                # the terminal's width (None: one line per error)
+        self._commands = commands          # the command table (None: the registry's)
         self._passage: Passage | None = None
         self.refused = 0                   # lines refused or failed (line mode: exit status)
         self.last_error: str | None = None
 
     # ------------------------------------------------------------ the passage
+    def _named(self, key: str) -> str:
+        """The vessel's name or the passage title: the latest `vessel`/`title` setting, else the
+        log's header."""
+        names = self.__dict__.setdefault("_names", {})
+        if key not in names:
+            names[key] = next((e[key] for e in reversed(self.log.effective_entries("setting"))
+                               if key in e.data), self.log.header[key])
+        return names[key]
+
     @property
     def title(self) -> str:
-        return self.log.header["title"]
+        return self._named("title")
 
     @property
     def vessel(self) -> str:
-        return self.log.header["vessel"]
+        return self._named("vessel")
 
     @property
     def passage(self) -> Passage:
@@ -71,17 +75,18 @@ class ShellState:
         try:
             return self.log.append(entry)
         finally:
-            self._passage = None
+            self.changed()
 
     def changed(self) -> None:
         """The log changed (a strike or a correction): rebuild the passage when next asked."""
         self._passage = None
+        self.__dict__.pop("_names", None)
 
     def append_many(self, entries: list[dict]) -> list[Entry]:
         try:
             return self.log.append_many(entries)
         finally:
-            self._passage = None
+            self.changed()
 
     # ------------------------------------------------------------ context for the parsers
     def now(self) -> datetime:
@@ -93,6 +98,30 @@ class ShellState:
             if "utc" in e.data:
                 return parse_utc(e["utc"]), e.id
         return None, None
+
+    def latest(self) -> tuple[datetime | None, str | None]:
+        """The latest time of any entry that has one (in time, not log order), and its id."""
+        names = self.__dict__.setdefault("_names", {})
+        if "latest" not in names:
+            best = (None, None)
+            for e in self.log.effective_entries():
+                if "utc" in e.data:
+                    t = parse_utc(e["utc"])
+                    if best[0] is None or t >= best[0]:
+                        best = (t, e.id)
+            names["latest"] = best
+        return names["latest"]
+
+    def passage_now(self) -> tuple[datetime, str | None]:
+        """The time `where` and the toolbar answer for: the clock while the log is live (its
+        latest entry at most LIVE_HOURS before the clock), else the time of the latest entry
+        (a passage entered after the fact, or a clock behind the log). Returns (time, id of that
+        entry, or None for the clock)."""
+        now = self.now()
+        t, eid = self.latest()
+        if t is None or timedelta(0) <= now - t <= timedelta(hours=LIVE_HOURS):
+            return now, None
+        return t, eid
 
     def raw(self, eid: str) -> Entry | None:
         return self.log.entry_by_id(eid)
@@ -110,11 +139,29 @@ class ShellState:
             print(line, file=self.out)
         self.out.flush()
 
-    def error(self, text: str) -> None:
+    def wrap(self, text: str, indent: str = "  ") -> list[str]:
+        """`text` as lines of the terminal's width (one line when there is no terminal)."""
+        if self._width is None:
+            return [text]
+        width = max(40, int(self._width()) - 1)
+        return textwrap.wrap(text, width, subsequent_indent=indent, break_on_hyphens=False) \
+            or [text]
+
+    KEPT_LINE = "the line is kept at the prompt to be mended; Ctrl-C clears it"
+    KEPT_ANSWER = "the answer is kept to be mended; Ctrl-C gives up the whole entry"
+
+    def error(self, text: str, *, kept: bool | str = False) -> None:
+        """An error in full, wrapped to the terminal's width. `kept`: the refused line (or the
+        answer, with `kept` the words to say) stays at the prompt for editing, and the message
+        says so."""
         self.refused += 1
         text = _CONTROL.sub("?", text)      # typed control characters are not sent to the tty
         self.last_error = text
-        print(f"error: {text}", file=self.err)
+        lines = self.wrap(f"error: {text}")
+        if kept:
+            lines += self.wrap("  " + (kept if isinstance(kept, str) else self.KEPT_LINE), "    ")
+        for line in lines:
+            print(line, file=self.err)
         self.err.flush()
 
     def ask(self, label: str, default: str | None, check: Callable | None, kind: str | None) -> str:
@@ -124,44 +171,23 @@ class ShellState:
         return self._ask(label, default, check, kind)
 
     # ------------------------------------------------------------ lines
-    def check(self, line: str) -> str | None:
-        """Why a line would be refused (None if it parses): the validator's answer on Enter."""
-        from .registry import parse_line
+    @property
+    def commands(self):
+        """The command table (the registry's, unless another was given)."""
+        if self._commands is None:
+            from .registry import TABLE
 
-        try:
-            parse_line(line, self)
-        except NavInputError as err:
-            return str(err)
-        except Exception:  # noqa: BLE001 - the run reports it as an internal error
-            return None
-        return None
+            self._commands = TABLE
+        return self._commands
+
+    def check(self, line: str) -> str | None:
+        """Why a line would be refused (None if it parses): the answer on Enter."""
+        return check(self.commands, self, line)
 
     def dispatch(self, line: str) -> bool:
         """Run one line. False when the shell should end. Never raises (but KeyboardInterrupt
         in line mode, which ends the shell)."""
-        from .registry import parse_line
-
-        name = line.strip().split(" ", 1)[0][:20] if line.strip() else ""
-        try:
-            parsed = parse_line(line, self)
-            if parsed is None:
-                return True
-            cmd, request = parsed
-            name = cmd.name
-            return cmd.run(self, request) is not QUIT
-        except Cancelled:
-            self.say(f"{name} cancelled; nothing was logged")
-        except NavError as err:           # NavInputError, LogWriteError: one clear line
-            self.error(str(err))
-        except KeyboardInterrupt:
-            if not self.interactive:
-                raise
-            self.error(f"'{name}' interrupted; nothing more was logged")
-        except Exception as err:  # noqa: BLE001 - the shell goes on; no traceback
-            self._passage = None
-            self.error(f"internal error in '{name}' ({type(err).__name__}); nothing more was "
-                       "logged and the shell goes on; please report it")
-        return True
+        return run_line(self.commands, self, line)
 
 
 def position_brief(w) -> str:
@@ -179,8 +205,13 @@ def status_line(st: ShellState | None) -> str:
     """The bottom toolbar: passage, UTC now, the DR/fix and its age, height of eye, IE."""
     if st is None:
         return f"choosing a passage log  |  UTC {now_utc():%H:%M:%S}"
-    now = st.now()
-    parts = [st.title[:32], f"UTC {now:%H:%M:%S}"]
+    clock = st.now()
+    try:
+        now, eid = st.passage_now()
+    except Exception:  # noqa: BLE001 - a toolbar must never break the prompt
+        now, eid = clock, None
+    parts = [st.title[:32], f"UTC {now:%H:%M:%S}" if eid is None else
+             f"latest entry {format_date_hm(now)} UTC"]
     try:
         s = st.settings
         try:
@@ -193,8 +224,8 @@ def status_line(st: ShellState | None) -> str:
             parts.append("no DR yet" if a is None else
                          f"last {a.basis if 'fix' in a.basis else a.basis.upper()} "
                          f"{format_lat(a.lat_deg)} {format_lon(a.lon_deg)} at "
-                         f"{a.utc:%Y-%m-%d %H:%M}")
+                         f"{format_date_hm(a.utc)}")
     except Exception:  # noqa: BLE001 - a toolbar must never break the prompt
-        return f"{st.title[:32]}  |  UTC {now:%H:%M:%S}"
+        return f"{st.title[:32]}  |  UTC {clock:%H:%M:%S}"
     parts.append(f"eye {s.eye_height_m:.1f} m  IE {format_arcmin(s.index_error_arcmin)}")
     return "  |  ".join(parts)

@@ -13,6 +13,7 @@ import os
 
 from ..errors import NavInputError
 from ..fields import HORIZONS, LIMBS
+from .entries import summary
 from .words import (CORRECTABLE, EXPORT_FORMATS, NUMERIC_START, OPTIONS, POSITION_BASES,
                     REST_WORDS, Token, tokenize)
 
@@ -72,9 +73,7 @@ def _entries(st, kinds=None, standing=True):
         cur = st.lookup(e.id)
         if standing and cur is None:
             continue
-        from .records import entry_summary
-
-        out.append((e.id, f"{e.kind}: {entry_summary(cur or e)}"[:60]))
+        out.append((e.id, f"{e.kind}: {summary(cur or e)}"[:60]))
     return out[::-1]
 
 

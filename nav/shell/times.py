@@ -22,7 +22,8 @@ from typing import Mapping
 
 from ..errors import NavInputError, OutOfRangeError
 from ..fields import parse_sight_utc
-from ..timekeeping import parse_naive_time, parse_utc, zone_time_to_utc
+from ..timekeeping import (format_date_hms, format_zone_description, parse_naive_time, parse_utc, round_to_second,
+                           zone_time_to_utc)
 
 _TIME_OF_DAY = re.compile(r"^(?P<h>\d{1,2}):(?P<m>\d{2})(?::(?P<s>\d{2}(?:\.\d+)?))?$")
 TIME_EXAMPLE = "at 20:55:00, at 2026-06-14T20:55:00Z or zt 17:55:12"
@@ -48,7 +49,7 @@ class TimeRead:
                "time_text": self.text, "zone_description": None, "zone_description_h": None,
                "watch_error": None, "watch_error_s": None}
         if self.source == "watch":
-            out.update(zone_description=f"{self.zone_description_h:+g}",
+            out.update(zone_description=format_zone_description(self.zone_description_h),
                        zone_description_h=self.zone_description_h,
                        watch_error=watch_text(self.watch_error_s),
                        watch_error_s=self.watch_error_s)
@@ -63,7 +64,8 @@ def watch_text(seconds: float) -> str:
 
 
 def zone_text(hours: float) -> str:
-    return f"{hours:+g} h" if hours else "0 (UTC)"
+    """``+3 h``, ``-5:30 h``, ``0 (UTC)``: the one notation of :mod:`nav.timekeeping`."""
+    return f"{format_zone_description(hours)} h" if hours else "0 (UTC)"
 
 
 def _default_date(ctx, zone_h: float = 0.0, hms: str | None = None) -> tuple[date, str]:
@@ -97,7 +99,7 @@ def parse_at(text: str, ctx, fld: str = "at", *, sight: bool = False) -> TimeRea
     if not m:
         t = check(text, fld)
         note = "" if text.strip().upper().endswith(("Z", "UTC")) else f" (given as {text})"
-        return TimeRead(t, "utc", text, f"UTC {t:%Y-%m-%d %H:%M:%S}{note}")
+        return TimeRead(t, "utc", text, f"UTC {format_date_hms(t)}{note}")
     day, why = _default_date(ctx, hms=_time_of_day(m))
     try:
         t = check(f"{day:%Y-%m-%d}T{_time_of_day(m)}Z", fld)
@@ -106,7 +108,7 @@ def parse_at(text: str, ctx, fld: str = "at", *, sight: bool = False) -> TimeRea
     except NavInputError:
         raise NavInputError(f"'{text}' is not a real time of day", field=fld,
                             example="20:55:00") from None
-    return TimeRead(t, "utc", text, f"UTC {t:%Y-%m-%d %H:%M:%S} (date {day:%Y-%m-%d}: {why})")
+    return TimeRead(t, "utc", text, f"UTC {format_date_hms(t)} (date {day:%Y-%m-%d}: {why})")
 
 
 def parse_zt(text: str, ctx, fld: str = "zt", *, sight: bool = False) -> TimeRead:
@@ -136,8 +138,9 @@ def parse_zt(text: str, ctx, fld: str = "zt", *, sight: bool = False) -> TimeRea
              f"watch {abs(fast_s):g} s {'fast, subtracted' if fast_s > 0 else 'slow, added'}")
     if rated is not None:
         watch += f" ({rated[1]})"
-    explain = (f"watch {reading:%Y-%m-%d %H:%M:%S}{why}, {watch}: ZT {wt.zone_time:%H:%M:%S}; "
-               f"ZD {zone_text(zd_h)}, UTC = ZT + ZD = {wt.utc:%Y-%m-%d %H:%M:%S}")
+    zt = round_to_second(wt.zone_time)
+    explain = (f"watch {reading:%Y-%m-%d %H:%M:%S}{why}, {watch}: ZT {zt:%H:%M:%S}; "
+               f"ZD {zone_text(zd_h)}, UTC = ZT + ZD = {format_date_hms(wt.utc)}")
     return TimeRead(wt.utc, "watch", f"{reading:%Y-%m-%d %H:%M:%S}", explain,
                     zone_description_h=zd_h, watch_error_s=fast_s, watch_reading=reading)
 
@@ -165,6 +168,32 @@ def parse_time_options(options: Mapping[str, str], ctx, *, sight: bool = False,
     return None
 
 
+def passage_time(ctx) -> TimeRead:
+    """The time a question without a time is answered for (`where`, the toolbar): now while the
+    log is live, else the time of its latest entry, saying which (see ShellState.passage_now)."""
+    t, eid = ctx.passage_now()
+    if eid is None:
+        return TimeRead(t, "now", "now", f"UTC {format_date_hms(t)} (now: no time was given)")
+    clock = ctx.now()
+    days = (clock - t).total_seconds() / 86_400.0
+    gap = (f"{abs(days):.1f} d" if abs(days) >= 2 else f"{abs(days) * 24:.1f} h") + \
+        (" later" if days > 0 else " earlier")
+    return TimeRead(t, "latest", "latest", (
+        f"UTC {format_date_hms(t)} (the time of the latest entry, {eid}, not the clock: the "
+        f"clock reads {format_date_hms(clock)} UTC, {gap}, so the passage is taken as entered "
+        "after the fact)"))
+
+
 def now_time(ctx) -> TimeRead:
+    """Now, for an entry given without a time; in a log entered after the fact (its latest entry
+    far from the clock) the explanation says so, as the entry may belong to the passage."""
     t = ctx.now()
-    return TimeRead(t, "now", "now", f"UTC {t:%Y-%m-%d %H:%M:%S} (now: no time was given)")
+    explain = f"UTC {format_date_hms(t)} (now: no time was given)"
+    latest = getattr(ctx, "passage_now", None)
+    if latest is not None:
+        ref, eid = latest()
+        if eid is not None:
+            explain += (f"; caution: the latest entry, {eid}, is at {format_date_hms(ref)} UTC: "
+                        "give at TIME if this belongs to the passage (strike it and enter it "
+                        "again)")
+    return TimeRead(t, "now", "now", explain)

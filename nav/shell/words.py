@@ -15,7 +15,7 @@ from typing import Callable, Mapping
 
 from ..angles import parse_height_m, parse_lat, parse_lon
 from ..errors import NavInputError
-from ..fields import SIGHT_FIELD_BY_NAME, parse_body, parse_horizon, parse_limb
+from ..fields import SIGHT_FIELD_BY_NAME, parse_body, parse_horizon, parse_limb, parse_note
 from ..timekeeping import parse_watch_error, parse_zone_description
 
 NUMERIC_START = tuple("0123456789+-.\u2212")
@@ -110,7 +110,7 @@ def _sigma(text: str, fld: str) -> dict:
 
 
 def _note(text: str, fld: str) -> dict:
-    return {"note": text}
+    return {"note": parse_note(text, fld)}
 
 
 def body_fields(text: str, fld: str) -> dict:
@@ -155,7 +155,8 @@ OPTIONS: dict[str, Option] = {o.word: o for o in (
     Option("hs", "number", "34 12.3", "sextant altitude", hs_fields),
     Option("position", "position", "41 12.5 N 032 07.1 W", "a position, latitude then longitude",
            position_fields),
-    Option("text", "text", "reefed at dusk", "the text of a note", lambda t, f: {"text": t}),
+    Option("text", "text", "reefed at dusk", "the text of a note",
+           lambda t, f: {"text": parse_note(t, f)}),
 )}
 SETTING_WORDS = ("eye", "ie", "watch", "zone", "temp", "pressure", "horizon")
 SIGHT_WORDS = ("limb", "at", "zt", "ie", "eye", "temp", "pressure", "horizon", "sigma", "note")
@@ -218,6 +219,10 @@ def option_fields(options: Mapping[str, str], skip=("at", "zt")) -> dict:
 def split_position(text: str, fld: str = "position") -> tuple[str, str]:
     """Latitude text and longitude text of a typed position (each parsed by nav.angles)."""
     example = "41 12.5 N 032 07.1 W, or 41.2083 -32.118"
+    letters = [c for c in text.upper() if c in "NSEW"]
+    if len(letters) == 2 and letters[0] in "EW" and letters[1] in "NS" and "," not in text:
+        raise NavInputError(f"'{text}' gives the longitude first: are the latitude and longitude "
+                            "swapped? Write the latitude first", field=fld, example=example)
     if "," in text:
         parts = [p.strip() for p in text.split(",")]
         if len(parts) != 2 or not all(parts):
