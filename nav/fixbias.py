@@ -165,7 +165,7 @@ def solve_fix_bias(sights, dr_lat_deg: float, dr_lon_deg: float, fix_utc: dateti
     lev = w * np.einsum("ij,jk,ik->i", jac, cov / scale ** 2, jac)
     norm_res, flags = _checks(e, w, lev, scale, dof)
     significant = abs(b) > SIGNIFICANT_SIGMAS * bias_sigma
-    warnings = [f"shared altitude error {b:+.1f}\u2032 \u00b1 {bias_sigma:.1f}\u2032 (1\u03c3): "
+    warnings = [f"shared altitude error {round(b, 1) + 0.0:+.1f}\u2032 \u00b1 {bias_sigma:.1f}\u2032 (1\u03c3): "
                 "every line was shifted by it; the ellipse allows for the extra unknown"]
     if significant:
         warnings.append("the shared error is significant (beyond "

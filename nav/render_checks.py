@@ -63,9 +63,11 @@ def dr_ep_text(dr, ep) -> str:
 
 def bias_lines(bf) -> list[str]:
     """The shared altitude error under the fix's own lines."""
-    sense = "read high" if bf.bias_arcmin > 0 else "read low"
-    out = [f"  shared error {bf.bias_arcmin:+.1f}\u2032 \u00b1 {bf.bias_sigma_arcmin:.1f}\u2032 "
-           f"(1\u03c3; + when the altitudes read high): the observed altitudes {sense}",
+    b = round(bf.bias_arcmin, 1) + 0.0
+    sense = ("the observed altitudes read high" if b > 0 else
+             "the observed altitudes read low" if b < 0 else "no shared error to speak of")
+    out = [f"  shared error {b:+.1f}\u2032 \u00b1 {bf.bias_sigma_arcmin:.1f}\u2032 "
+           f"(1\u03c3; + when the altitudes read high): {sense}",
            f"  position \u03c3  {bf.sigma_north_nmi:.1f} nmi N\u2013S, {bf.sigma_east_nmi:.1f} nmi "
            "E\u2013W, with the shared error estimated"]
     if bf.significant:
