@@ -27,6 +27,7 @@ COMMAND_MODULES = (
     "nav.commands.identify_cmd",
     "nav.commands.plan_cmd",
     "nav.commands.equal_cmd",
+    "nav.commands.marking_cmd",
     "nav.commands.shell_cmd",
 )
 

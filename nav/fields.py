@@ -12,9 +12,10 @@ from dataclasses import dataclass
 from datetime import datetime
 from typing import Callable
 
-from .angles import parse_altitude, parse_height_m, parse_lat, parse_lon, parse_number
+from .angles import parse_altitude, parse_angle, parse_height_m, parse_lat, parse_lon, parse_number
 from .errors import NavInputError
-from .timekeeping import parse_utc, to_datetime64
+from .timekeeping import (parse_clock_time, parse_ship_date, parse_utc, parse_watch_error,
+                          parse_zone_description, to_datetime64)
 
 LIMBS = ("lower", "upper", "center")
 _LIMB_WORDS = {"lower": "lower", "low": "lower", "ll": "lower", "l": "lower",
@@ -91,9 +92,61 @@ def check_hs_horizon(hs_deg: float, horizon: str, field: str = "hs") -> None:
                             example="34 12.3, or 112 24.6 with horizon artificial")
 
 
-def _index_error(text: str, field: str = "index_error") -> float:
-    return parse_number(text, field, min_value=-30.0, max_value=30.0,
-                        example="-1.5 (arcmin, + when the sextant reads high)")
+_IE_EXAMPLE = "2.4 off, 2.4 on or -2.4 (arcmin, + when the sextant reads high)"
+
+
+def parse_index_error(text: str, field: str = "index_error") -> float:
+    """Index error in arcminutes, + on the arc (the sextant reads high).
+
+    Signed (``-2.4``) or in the trade's words: ``2.4 off`` (off the arc, reads low: −2.4′, so the
+    correction is +2.4′) and ``2.4 on`` (+2.4′, correction −2.4′).
+    """
+    s = str(text).strip().lower()
+    for word, sign in (("off", -1.0), ("on", 1.0)):
+        if s.endswith(word):
+            number = s[: -len(word)].strip()
+            if number.startswith(("+", "-", "\u2212")):
+                raise NavInputError(f"'{text}': give 'on' or 'off' or a sign, not both",
+                                    field=field, example=_IE_EXAMPLE)
+            return sign * parse_number(number, field, min_value=0.0, max_value=30.0,
+                                       example=_IE_EXAMPLE)
+    return parse_number(s, field, min_value=-30.0, max_value=30.0,
+                        example=_IE_EXAMPLE)
+
+
+_index_error = parse_index_error
+
+
+def _watch_error_s(text: str, field: str = "watch_error") -> float:
+    return parse_watch_error(text, field).total_seconds()
+
+
+def _zone_h(text: str, field: str = "zone") -> float:
+    return parse_zone_description(text, field).total_seconds() / 3600.0
+
+
+def parse_method(text: str, field: str = "method") -> str:
+    """How a sight is reduced: ``ap`` (tables: whole-degree a-Lat, LHA whole) or ``dr``."""
+    key = str(text).strip().lower()
+    if key not in ("ap", "dr"):
+        raise NavInputError(f"'{text}' is not a method", field=field, example="ap or dr")
+    return key
+
+
+def _gha(text: str, field: str = "gha") -> float:
+    value = parse_angle(text, field, min_deg=0.0, max_deg=360.0)
+    return 0.0 if value == 360.0 else value
+
+
+def _dec(text: str, field: str = "dec") -> float:
+    return parse_lat(text, field)
+
+
+def _sight_id(text: str, field: str = "sight") -> str:
+    s = str(text).strip()
+    if len(s) > 20:
+        raise NavInputError(f"'{s[:24]}…' is longer than 20 characters", field=field, example="3")
+    return s
 
 
 # Air temperature and pressure. The bounds are physical for a sight at sea (from memory: the
@@ -191,12 +244,19 @@ class FieldSpec:
 
 
 SIGHT_FIELDS: tuple[FieldSpec, ...] = (
-    FieldSpec("utc", parse_sight_utc, True, None, "2026-03-20T18:42:10Z", "time of the sight, ISO 8601 with zone"),
+    FieldSpec("sight", _sight_id, False, "", "3", "the sight's id on a worked sheet"),
+    FieldSpec("utc", parse_sight_utc, False, None, "2026-03-20T18:42:10Z",
+              "time of the sight, ISO 8601 with zone (or date, watch_time, watch_error, zone)"),
+    FieldSpec("date", parse_ship_date, False, None, "2026-03-20", "ship's (zone) date of the sight"),
+    FieldSpec("watch_time", parse_clock_time, False, None, "15:42:10", "the watch's reading"),
+    FieldSpec("watch_error", _watch_error_s, False, None, "17 s slow", "watch error: 1 min 5 s fast"),
+    FieldSpec("zone", _zone_h, False, None, "+10", "zone description ZD: UTC = ZT + ZD"),
     FieldSpec("body", parse_body, True, None, "Sun", "body observed"),
     FieldSpec("limb", parse_limb, False, None, "lower", "lower, upper or center (Sun, Moon)"),
     FieldSpec("hs", parse_hs, True, None, "34 12.3", "sextant altitude: 34.205, 34 12.3 or 34°12.3' "
               "(an artificial horizon's double altitude up to 180°)"),
-    FieldSpec("index_error", _index_error, False, 0.0, "-1.5", "index error, arcmin, + on the arc"),
+    FieldSpec("index_error", parse_index_error, False, 0.0, "2.4 off",
+              "index error, arcmin: 2.4 off, 2.4 on, or signed (+ on the arc)"),
     FieldSpec("eye_height_m", parse_height_m, False, 0.0, "2.5", "height of eye, metres (or 8 ft)"),
     FieldSpec("temperature_c", _temperature, False, 10.0, "10", "air temperature, °C"),
     FieldSpec("pressure_hpa", _pressure, False, 1010.0, "1013", "air pressure, hPa"),
@@ -206,6 +266,9 @@ SIGHT_FIELDS: tuple[FieldSpec, ...] = (
     FieldSpec("course_deg", _course, False, None, "245", "course made good, degrees true"),
     FieldSpec("speed_kn", _speed, False, None, "6.5", "speed, knots"),
     FieldSpec("sigma_arcmin", _sigma, False, 1.0, "1.0", "expected sight error (1σ), arcmin"),
+    FieldSpec("method", parse_method, False, None, "ap", "ap (tables' AP) or dr"),
+    FieldSpec("gha", _gha, False, None, "283 07.9", "GHA prescribed by an exercise (replaces nav's)"),
+    FieldSpec("dec", _dec, False, None, "12 03.4 S", "Dec prescribed by an exercise (replaces nav's)"),
     FieldSpec("note", parse_note, False, "", "hazy horizon", f"free text, up to {MAX_NOTE_CHARS} characters"),
     FieldSpec("set_deg", _set, False, None, "210",
               "current's set, degrees true (toward), from this row on"),
@@ -213,3 +276,5 @@ SIGHT_FIELDS: tuple[FieldSpec, ...] = (
     FieldSpec("fix", _fix_label, False, "", "dawn", "label: rows with one label form one fix"),
 )
 SIGHT_FIELD_BY_NAME = {f.name: f for f in SIGHT_FIELDS}
+WATCH_TIME_FIELDS = ("date", "watch_time", "watch_error", "zone")
+"""The four columns that stand for ``utc`` in a row: UTC = (watch − fast error) + ZD."""

@@ -1,7 +1,8 @@
 """The batch sight file (CSV): read, validate every cell, resolve each sight's DR.
 
 The contract (README, "Batch sight files"): a header row, column names case-insensitive; columns
-``utc``, ``body`` and ``hs`` are required; the others are optional and take the defaults of
+``body`` and ``hs`` are required, and the time as ``utc`` or as the watch read it (``date``,
+``watch_time``, ``watch_error``, ``zone``: each row has one or the other); the others are optional and take the defaults of
 :data:`nav.fields.SIGHT_FIELDS`. Rows are in time order. A row without a DR takes the previous
 row's DR advanced by the course and speed in force to its time; the first row must have one.
 
@@ -19,10 +20,10 @@ import re
 from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Mapping
-from datetime import datetime
+from datetime import date, datetime, timedelta
 
 from .errors import NavInputError
-from .fields import SIGHT_FIELD_BY_NAME, SIGHT_FIELDS, check_hs_horizon, check_limb
+from .fields import SIGHT_FIELD_BY_NAME, SIGHT_FIELDS, WATCH_TIME_FIELDS, check_hs_horizon, check_limb
 
 MAX_FILE_BYTES = 20 * 1024 * 1024
 MAX_ROWS = 1_000_000
@@ -60,6 +61,22 @@ class SightRow:
     """The file's line where the row starts, as an editor numbers it (the header is line 1)."""
     dr_age_h: float = 0.0
     """Hours since the DR was last set from a position (a row's typed DR, a log's anchor)."""
+    sight_id: str = ""
+    """The sight's id on a worked sheet (column ``sight``); the row number when not given."""
+    method: str | None = None
+    """``ap`` (the tables' AP) or ``dr``, when the row says; None leaves it to the command."""
+    gha_override_deg: float | None = None
+    """GHA prescribed by the file (column ``gha``), replacing the ephemeris' for this sight."""
+    dec_override_deg: float | None = None
+    """Dec prescribed by the file (column ``dec``), replacing the ephemeris' for this sight."""
+    ship_date: date | None = None
+    """The ship's (zone) date when the time was given as the watch read it, else None."""
+    watch_time: timedelta | None = None
+    """The watch's reading (time since the ship's midnight), else None."""
+    watch_error_s: float | None = None
+    """Watch error in seconds, + fast (subtracted from the reading), else None."""
+    zone_h: float | None = None
+    """Zone description in hours, UTC = ZT + ZD (+ in west longitude), else None."""
 
 
 @dataclass(frozen=True)
@@ -177,9 +194,16 @@ def _header(names: list[str]) -> list[str | None]:
         seen.add(key)
         out.append(key)
     missing = [r for r in REQUIRED if r not in seen]
+    if "utc" not in seen:
+        missing += [w for w in WATCH_TIME_FIELDS if w not in seen] if seen & set(WATCH_TIME_FIELDS) \
+            else ["utc (or date, watch_time, watch_error, zone)"]
     if missing:
         raise NavInputError(f"missing required column(s): {', '.join(missing)}", field="header",
                             row=0, line=1, example="utc,body,hs,dr_lat,dr_lon")
+    if "utc" in seen and not set(WATCH_TIME_FIELDS) <= seen and seen & set(WATCH_TIME_FIELDS):
+        raise NavInputError("the watch-time columns go together: date, watch_time, watch_error, zone",
+                            field="header", row=0, line=1,
+                            example="...,date,watch_time,watch_error,zone")
     if ("dr_lat" in seen) != ("dr_lon" in seen):
         raise NavInputError("dr_lat and dr_lon go together", field="header", row=0, line=1,
                             example="...,dr_lat,dr_lon")
@@ -213,11 +237,47 @@ def _parse_cells(row_no: int, cells: dict[str, str]) -> tuple[dict, list[NavInpu
             values["limb"] = check_limb(values["body"], values.get("limb"))
         except NavInputError as err:
             errors.append(err.at_row(row_no))
+    _sight_time(row_no, cells, values, errors)
     if (values.get("dr_lat") is None) != (values.get("dr_lon") is None) and not any(
             e.field in ("dr_lat", "dr_lon") for e in errors):
         errors.append(NavInputError("give both dr_lat and dr_lon, or neither", field="dr_lat",
                                     row=row_no, example="41 12.5 N, 032 07.1 W"))
     return values, errors
+
+
+def _sight_time(row_no: int, cells: dict[str, str], values: dict, errors: list) -> None:
+    """Set ``values["utc"]`` from the watch-time cells when the row has them instead of ``utc``.
+
+    A row has either ``utc`` or all four of date, watch_time, watch_error and zone (never both,
+    never part): UTC = (watch − fast error) + ZD, on the ship's date.
+    """
+    from .ephemeris import check_range
+    from .timekeeping import UTC, to_datetime64
+
+    given = [w for w in WATCH_TIME_FIELDS if (cells.get(w) or "").strip()]
+    has_utc = bool((cells.get("utc") or "").strip())
+    if any(e.field in ("utc",) + WATCH_TIME_FIELDS for e in errors):
+        return
+    if has_utc and given:
+        errors.append(NavInputError("give the time as utc or as date, watch_time, watch_error and "
+                                    "zone, not both", field="utc", row=row_no,
+                                    example="2026-03-20T18:42:10Z, or leave utc empty"))
+    elif not has_utc and len(given) < len(WATCH_TIME_FIELDS):
+        missing = [w for w in WATCH_TIME_FIELDS if w not in given]
+        errors.append(NavInputError("the time is needed: utc, or " + ", ".join(missing) +
+                                    (" with the rest" if given else ""),
+                                    field=missing[0] if given else "utc", row=row_no,
+                                    example=SIGHT_FIELD_BY_NAME[missing[0] if given else "utc"].example))
+    elif not has_utc:
+        zt = datetime.combine(values["date"], datetime.min.time()) + values["watch_time"]
+        utc = (zt - timedelta(seconds=values["watch_error"]) +
+               timedelta(hours=values["zone"])).replace(tzinfo=UTC)
+        try:
+            check_range(to_datetime64(utc), "date")
+        except NavInputError as err:
+            errors.append(err.at_row(row_no))
+            return
+        values["utc"] = utc
 
 
 def parse_sight_csv(text: str, *, skip_bad_rows: bool = False) -> SightFile:
@@ -331,7 +391,10 @@ def parse_sight_csv(text: str, *, skip_bad_rows: bool = False) -> SightFile:
             dr_lat_deg=lat, dr_lon_deg=lon, dr_given=given, course_deg=course, speed_kn=speed,
             sigma_arcmin=v["sigma_arcmin"], note=v["note"], cells=v["cells"],
             line=line_of[row_no],
-            dr_age_h=(v["utc"] - dr_set_utc).total_seconds() / 3600.0)
+            dr_age_h=(v["utc"] - dr_set_utc).total_seconds() / 3600.0,
+            sight_id=v["sight"] or str(row_no), method=v["method"], gha_override_deg=v["gha"],
+            dec_override_deg=v["dec"], ship_date=v["date"], watch_time=v["watch_time"],
+            watch_error_s=v["watch_error"], zone_h=v["zone"])
         rows.append(row)
         prev = row
     for err in errors:

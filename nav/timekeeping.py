@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
-from datetime import datetime, timedelta, timezone
+from datetime import date, datetime, timedelta, timezone
 from decimal import Decimal
 
 import numpy as np
@@ -215,18 +215,26 @@ def parse_zone_description(text: str, field: str = "zone") -> timedelta:
 
 
 # No bare "s" for slow: "12s" would read as 12 seconds slow to one navigator and 12 seconds to another.
-_WATCH_RE = re.compile(r"^\s*(?P<v>\d+(?:\.\d*)?)\s*s?\s*(?P<dir>fast|slow|f)\s*$", re.I)
+# Minutes and seconds as the trade says them: "17 s slow", "1 min 5 s fast", "1m 5s fast", "12 fast".
+_WATCH_RE = re.compile(
+    r"^\s*(?:(?P<min>\d+)\s*(?:min|mins|m)(?![a-z])\s*)?(?:(?P<v>\d+(?:\.\d*)?)\s*(?:sec|s)?\s*)?"
+    r"(?P<dir>fast|slow|f)\s*$", re.I)
+WATCH_ERROR_EXAMPLE = "17 s slow, 1 min 5 s fast, 12 fast or +12 (seconds fast)"
 
 
 def parse_watch_error(text: str, field: str = "watch_error") -> timedelta:
-    """Watch error as a navigator states it: ``12 fast``, ``3.5s slow``, or signed seconds ``+12``.
+    """Watch error as a navigator states it: ``12 fast``, ``17 s slow``, ``1 min 5 s fast``, or
+    signed seconds ``+12`` (+ fast).
 
     Returned as the amount the watch is *fast* (positive) — subtract it from a watch reading.
     """
     s = str(text).strip()
     m = _WATCH_RE.match(s)
-    if m:
-        seconds = float(m.group("v"))
+    if m and (m.group("min") or m.group("v")):
+        seconds = float(m.group("v") or 0.0) + 60.0 * int(m.group("min") or 0)
+        if m.group("min") and float(m.group("v") or 0.0) >= 60.0:
+            raise NavInputError(f"'{text}' has 60 or more seconds after its minutes", field=field,
+                                example=WATCH_ERROR_EXAMPLE)
         fast = m.group("dir").lower() in ("fast", "f")
         return timedelta(seconds=seconds if fast else -seconds)
     try:
@@ -236,7 +244,16 @@ def parse_watch_error(text: str, field: str = "watch_error") -> timedelta:
         return timedelta(seconds=seconds)
     except (ValueError, OverflowError):
         raise NavInputError(f"'{text}' is not a watch error", field=field,
-                            example="12 fast, 3.5 slow or +12 (seconds fast)") from None
+                            example=WATCH_ERROR_EXAMPLE) from None
+
+
+def format_watch_error(fast_s: float) -> str:
+    """The trade's words for a watch error in seconds (+ fast): ``1 min 5 s fast``, ``17 s slow``."""
+    word = "fast" if fast_s >= 0 else "slow"
+    total = abs(fast_s)
+    minutes, seconds = divmod(total, 60.0)
+    sec = f"{seconds:.0f} s" if seconds == round(seconds) else f"{seconds:.1f} s"
+    return (f"{int(minutes)} min {sec} {word}" if minutes else f"{sec} {word}")
 
 
 @dataclass(frozen=True)
@@ -274,6 +291,32 @@ def parse_naive_time(text: str, field: str = "time") -> datetime:
             continue
     raise NavInputError(f"'{text}' is not a date and time", field=field,
                         example="2026-03-20 15:42:10")
+
+
+_DATE_RE = re.compile(r"^\s*(\d{4})-(\d{2})-(\d{2})\s*$")
+_CLOCK_RE = re.compile(r"^\s*(\d{1,2}):(\d{2})(?::(\d{2}(?:\.\d+)?))?\s*$")
+
+
+def parse_ship_date(text: str, field: str = "date") -> date:
+    """A calendar date as the ship keeps it (zone date): ``2026-03-20``."""
+    m = _DATE_RE.match(str(text))
+    try:
+        if not m:
+            raise ValueError(text)
+        return date(int(m.group(1)), int(m.group(2)), int(m.group(3)))
+    except ValueError:
+        raise NavInputError(f"'{text}' is not a date", field=field, example="2026-03-20") from None
+
+
+def parse_clock_time(text: str, field: str = "watch_time") -> timedelta:
+    """A time of day as read on a watch, ``HH:MM:SS`` (or ``HH:MM``), as time since midnight."""
+    m = _CLOCK_RE.match(str(text))
+    if not m:
+        raise NavInputError(f"'{text}' is not a time of day", field=field, example="15:42:10")
+    h, mi, sec = int(m.group(1)), int(m.group(2)), float(m.group(3) or 0.0)
+    if h > 23 or mi > 59 or sec >= 60.0:
+        raise NavInputError(f"'{text}' is not a real time of day", field=field, example="15:42:10")
+    return timedelta(hours=h, minutes=mi, seconds=sec)
 
 
 def time_range(start: datetime, stop: datetime, step: timedelta, *, max_rows: int) -> np.ndarray:

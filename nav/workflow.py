@@ -47,7 +47,7 @@ def reduce_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> SightReduc
     from .errors import NavInputError
 
     try:
-        return reduce_sights(
+        red = reduce_sights(
             [r.body for r in rows], to_datetime64(np.array([r.utc for r in rows], dtype=object)),
             np.array([r.hs_deg for r in rows]),
             limb=np.array([r.limb for r in rows], dtype=object),
@@ -63,6 +63,43 @@ def reduce_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> SightReduc
             err.line = rows[err.row - 1].line
             err.row = rows[err.row - 1].row
         raise
+    return apply_row_choices(red, rows, use_ap=use_ap)
+
+
+PRESCRIBED_NOTE = "GHA/Dec prescribed by the sight file (columns gha, dec), not nav's ephemeris"
+
+
+def apply_row_choices(red: SightReductions, rows: Sequence[SightRow], *,
+                      use_ap: bool) -> SightReductions:
+    """Each row's own choices: a prescribed GHA/Dec replaces the ephemeris' (and says so), and a
+    row's ``method`` (``ap``/``dr``) overrides the command's choice of position to reduce from."""
+    from dataclasses import replace
+
+    from .reduction import reduce_at, reduce_from_ap
+
+    prescribed = [r.gha_override_deg is not None or r.dec_override_deg is not None for r in rows]
+    ap = np.array([use_ap if r.method is None else r.method == "ap" for r in rows])
+    if not any(prescribed) and bool(np.all(ap == use_ap)):
+        return red
+    gha = np.array([r.gha_override_deg if r.gha_override_deg is not None else g
+                    for r, g in zip(rows, np.atleast_1d(red.gha_deg))])
+    dec = np.array([r.dec_override_deg if r.dec_override_deg is not None else d
+                    for r, d in zip(rows, np.atleast_1d(red.dec_deg))])
+    args = (red.ho_deg, gha, dec, red.dr_lat_deg, red.dr_lon_deg)
+    by_ap, by_dr = reduce_from_ap(*args), reduce_at(*args)
+    pick = {f: np.where(ap, getattr(by_ap, f), getattr(by_dr, f))
+            for f in ("gha_deg", "dec_deg", "lat_deg", "lon_deg", "lha_deg", "hc_deg", "zn_deg",
+                      "intercept_nmi")}
+    from .reduction import reduction_warnings
+
+    warnings = []
+    for w, p, ho, before, after in zip(red.warnings, prescribed, np.atleast_1d(red.ho_deg),
+                                       np.atleast_1d(red.intercept_nmi), pick["intercept_nmi"]):
+        stale = set(reduction_warnings(ho, before))      # they judged the replaced reduction
+        warnings.append(tuple(x for x in w if x not in stale) + reduction_warnings(ho, after)
+                        + ((PRESCRIBED_NOTE,) if p else ()))
+    warnings = tuple(warnings)
+    return replace(red, **pick, from_ap=bool(np.all(ap)), warnings=warnings)
 
 
 def refused_rows(rows: Sequence[SightRow], *, use_ap: bool = False) -> list:

@@ -359,3 +359,62 @@ def test_a_written_file_reads_back_to_the_same_values(case):
         for key in ("index_error_arcmin", "eye_height_m", "temperature_c", "pressure_hpa",
                     "course_deg", "speed_kn"):   # plain decimals (feet × 0.3048): read exactly
             assert getattr(row, key) == want[key], key
+
+
+# ---------------------------------------------------------------- exercise columns (issue 8 §1)
+
+EXERCISE_HEADER = ["sight", "date", "watch_time", "watch_error", "zone", "body", "hs",
+                   "index_error", "dr_lat", "dr_lon", "method", "gha", "dec"]
+
+
+def test_watch_time_columns_give_utc_by_the_trades_rule():
+    # UTC = ZT + ZD and ZT = watch - fast error (common practice, no source): watch 07:42:10,
+    # 1 min 5 s fast -> ZT 07:41:05; ZD +10 -> 17:41:05 UTC the same day.
+    sf = parse_sight_csv(csv_text(EXERCISE_HEADER, [
+        ["A", "2026-03-20", "07:42:10", "1 min 5 s fast", "+10", "Sun", "34 12.3", "2.4 off",
+         "20 30 S", "151 26 W", "ap", "", ""],
+        ["B", "2026-03-20", "23:50:00", "17 s slow", "+10", "Sun", "44 12.3", "2.4 on",
+         "20 30 S", "151 26 W", "dr", "", ""]]))
+    assert not sf.errors
+    a, b = sf.rows
+    assert a.utc == datetime(2026, 3, 20, 17, 41, 5, tzinfo=UTC)
+    assert b.utc == datetime(2026, 3, 21, 9, 50, 17, tzinfo=UTC)   # the Greenwich date moves on
+    assert (a.sight_id, a.watch_error_s, a.zone_h, a.method) == ("A", 65.0, 10.0, "ap")
+    # "2.4 off" reads low: IE -2.4' (correction +2.4'); "on" the arc reads high (trade's words)
+    assert (a.index_error_arcmin, b.index_error_arcmin) == (-2.4, 2.4)
+    assert b.method == "dr" and a.gha_override_deg is None
+
+
+@pytest.mark.parametrize("cells, field", [
+    (["1", "2026-03-20", "07:42:10", "", "+10"], "watch_error"),        # part of the watch time
+    (["1", "2026-03-20", "07:42:10", "12 s", "+10"], "watch_error"),    # no direction
+    (["1", "2026-03-20", "25:42:10", "0", "+10"], "watch_time"),
+    (["1", "2026-03-32", "07:42:10", "0", "+10"], "date"),
+    (["1", "2026-03-20", "07:42:10", "0", "+15"], "zone"),
+])
+def test_bad_watch_time_cells_name_their_column(cells, field):
+    sf = parse_sight_csv(csv_text(EXERCISE_HEADER, [
+        cells + ["Sun", "34 12.3", "0", "20 30 S", "151 26 W", "ap", "", ""]]))
+    assert [e.field for e in sf.errors] == [field] and sf.errors[0].row == 1
+
+
+def test_utc_and_watch_time_in_one_row_is_refused():
+    header = ["utc"] + EXERCISE_HEADER
+    sf = parse_sight_csv(csv_text(header, [
+        ["2026-03-20T17:41:05Z", "1", "2026-03-20", "07:42:10", "0", "+10", "Sun", "34 12.3", "0",
+         "20 30 S", "151 26 W", "ap", "", ""]]))
+    assert [e.field for e in sf.errors] == ["utc"]
+
+
+def test_prescribed_gha_dec_replace_the_ephemeris_and_say_so():
+    from nav.reduction import hc_zn
+    from nav.workflow import PRESCRIBED_NOTE, reduce_rows
+
+    sf = parse_sight_csv(csv_text(EXERCISE_HEADER, [
+        ["1", "2026-03-20", "07:42:10", "0", "+10", "Sun", "34 12.3", "0", "20 30 S",
+         "151 26 W", "dr", "100 00.0", "0 10.0 N"]]))
+    red = reduce_rows(sf.rows)
+    assert red.gha_deg[0] == 100.0 and red.dec_deg[0] == 10.0 / 60.0
+    assert PRESCRIBED_NOTE in red.warnings[0]
+    hc, _ = hc_zn(-20.5, 10.0 / 60.0, 100.0 - (151 + 26 / 60))   # LHA = GHA + lon (east +)
+    assert red.hc_deg[0] == hc

@@ -179,6 +179,9 @@ def test_utc_is_zone_time_plus_zone_description():
     ("12 fast", 12.0), ("12fast", 12.0), ("12 f", 12.0), ("12s fast", 12.0), ("3.5s slow", -3.5),
     ("3.5 slow", -3.5), ("3.5 SLOW", -3.5), ("+12", 12.0), ("12", 12.0), ("-3", -3.0),
     ("\u22123", -3.0), ("0", 0.0),
+    # minutes and seconds as the trade says them (common practice, no source)
+    ("17 s slow", -17.0), ("1 min 5 s fast", 65.0), ("1m 5s fast", 65.0), ("2 min slow", -120.0),
+    ("1 min 5.5 s slow", -65.5), ("1min5s fast", 65.0),
 ])
 def test_parse_watch_error(text, fast_s):
     assert parse_watch_error(text) == timedelta(seconds=fast_s)
@@ -191,11 +194,21 @@ def test_parse_watch_error(text, fast_s):
     "inf", "-inf", "nan",
     "12 sec",
     "",
+    "1 min 65 s fast",   # 65 seconds after a minute: a slip, not a reading
+    "1 min",             # no direction
+    "min fast",
 ])
 def test_ambiguous_or_bad_watch_errors_are_refused(text):
     with pytest.raises(NavInputError) as info:
         parse_watch_error(text)
     assert info.value.field == "watch_error" and info.value.example
+
+
+def test_watch_error_words_read_back():
+    from nav.timekeeping import format_watch_error
+
+    for seconds in (65.0, -17.0, 0.0, -120.0, 12.5):
+        assert parse_watch_error(format_watch_error(seconds)) == timedelta(seconds=seconds)
 
 
 def test_fast_watch_is_subtracted_slow_added():

@@ -21,6 +21,10 @@ def register(sub) -> None:
     p.add_argument("--ap", action="store_true",
                    help="reduce from the assumed position that sight-reduction tables use "
                         "(whole-degree latitude and LHA), to check table work")
+    p.add_argument("--worksheet", action="store_true",
+                   help="print each reduction in the order it is worked on paper, the tables' "
+                        "way (time, GHA hour plus increment, v and d, AP, Z and its rule, the "
+                        "main correction, Hc and the intercept)")
     p.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
     p.set_defaults(func=run_reduce)
 
@@ -109,7 +113,22 @@ def _setting_notes(row) -> dict:
 def run_reduce(args) -> int:
     from ..plausibility import doubtful_sights
     from ..render import reduction_dict, reduction_lines, sight_title
+    if getattr(args, "worksheet", False) and args.json:
+        raise NavInputError("--worksheet is text for reading; use --json alone for data",
+                            field="worksheet", example="nav reduce --worksheet sights.csv")
     rows, red = _reduce(args, _load(args), use_ap=args.ap)
+    if getattr(args, "worksheet", False):
+        from ..marking.reference import work_sheet
+        from ..marking.worksheet import worksheet_lines
+
+        for i, row in enumerate(rows):
+            for line in worksheet_lines(work_sheet(row, method=row.method or "ap")):
+                print(line)
+            for w in red.sight(i).warnings:
+                print(f"  warning: {w}")
+            print()
+        print(CAUTION)
+        return 0
     doubts = {d.index: d for d in doubtful_sights(rows, red if not args.ap else
                                                    _reduce(args, rows)[1])}
     if args.json:

@@ -100,6 +100,17 @@ def run_show(st, req) -> None:
     if raw.kind == "sight" and cur is not None:
         st.say(f"  time: {time_explain(cur)}")
         show_reduction(st, cur)
+        _show_worksheet(st, cur)
+
+
+def _show_worksheet(st, e) -> None:
+    """The sight in paper order (:func:`nav.marking.worksheet.row_worksheet_lines`)."""
+    from ..marking.worksheet import row_worksheet_lines
+
+    try:
+        st.say(*row_worksheet_lines(st.passage.reduction_view(e).sight_row(e)))
+    except NavInputError:
+        pass                  # not reduced yet: show_reduction has said why
 
 
 # ---------------------------------------------------------------- strike, correct

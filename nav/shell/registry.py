@@ -12,7 +12,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Callable
 
-from . import checks_cmds, handlers, meridian_cmds, records, sky_cmds
+from ..errors import NavInputError
+from . import checks_cmds, handlers, meridian_cmds, records, sky_cmds, triangle_cmd
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
                     parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
                     parse_name, parse_noon, parse_note, parse_plain, parse_plot, parse_set,
@@ -209,6 +210,11 @@ COMMANDS_LIST = (
     Command("almanac", f"almanac BODY [{TIME}]", "GHA, Dec, SHA, HP and SD of a body (default now)",
             parse_almanac, handlers.run_almanac, ("at", "zt"), "body", (),
             ("almanac Sun at 12:00:00",)),
+    Command("triangle", "triangle lat L dec D lha H [ho HO]",
+            "Hc, Z, Zn (and with Ho the intercept) from Lat, Dec and LHA; nothing is logged",
+            triangle_cmd.parse_triangle, triangle_cmd.run_triangle, triangle_cmd.WORDS, None,
+            ("for table work and exam problems that give their own almanac values",),
+            ("triangle lat 26 S dec 12 03.4 S lha 315 ho 44 12.3",)),
     Command("log", "log [N | all]", "list the latest N entries (default 20), or all",
             parse_log, records.run_log, (), "count", (), ("log", "log all")),
     Command("show", "show ID", "one entry in full (a sight with its reduction, its history)",

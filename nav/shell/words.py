@@ -157,6 +157,10 @@ OPTIONS: dict[str, Option] = {o.word: o for o in (
            position_fields),
     Option("text", "text", "reefed at dusk", "the text of a note",
            lambda t, f: {"text": parse_note(t, f)}),
+    Option("lat", "text", "26 S", "latitude with its name (triangle)"),
+    Option("dec", "text", "12 03.4 S", "declination with its name (triangle)"),
+    Option("lha", "number", "315", "local hour angle (triangle)"),
+    Option("ho", "number", "44 12.3", "observed altitude, for the intercept (triangle)"),
 )}
 SETTING_WORDS = ("eye", "ie", "watch", "zone", "temp", "pressure", "horizon")
 SIGHT_WORDS = ("limb", "at", "zt", "ie", "eye", "temp", "pressure", "horizon", "sigma", "note")
