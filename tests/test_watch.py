@@ -82,3 +82,31 @@ def test_watch_error_date_parser():
         parse_date_or_utc("2026-02-30")
     with pytest.raises(NavInputError):
         parse_date_or_utc("June 1st")
+
+
+BATCH_HEAD = ("date,watch_time,watch_error,zone,body,hs,dr_lat,dr_lon,"
+              "watch_rate_s_per_day,watch_error_date\n")
+
+
+def test_batch_columns_apply_the_rate():
+    # Worked by hand: watch 21:00:00 on zone +1 (UTC 22:00:00 less the error); the error, 4 s fast
+    # at 2026-06-01 00:00 UTC, gains 1.0 s a day: 10.917 d later it is 14.917 s, so
+    # UTC = 21:59:45.083
+    from nav.sightfile import parse_sight_csv
+
+    sf = parse_sight_csv(BATCH_HEAD + "2026-06-11,21:00:00,4 fast,+1,Vega,40 00.0,36 N,15 W,"
+                         "+1.0,2026-06-01\n")
+    (row,) = sf.rows
+    expected = datetime(2026, 6, 11, 21, 59, 45, 83000, tzinfo=UTC)
+    assert abs((row.utc - expected).total_seconds()) < 0.01 * SECOND
+    assert row.watch_error_s == pytest.approx(14.917, abs=0.001)
+
+
+def test_batch_rate_needs_its_date_and_a_watch_time():
+    from nav.sightfile import parse_sight_csv
+
+    sf = parse_sight_csv(BATCH_HEAD + "2026-06-11,21:00:00,4 fast,+1,Vega,40 00.0,36 N,15 W,+1.0,\n")
+    assert sf.errors and sf.errors[0].field == "watch_error_date"
+    sf = parse_sight_csv("utc,body,hs,dr_lat,dr_lon,watch_rate_s_per_day,watch_error_date\n"
+                         "2026-06-11T22:00:00Z,Vega,40 00.0,36 N,15 W,+1.0,2026-06-01\n")
+    assert sf.errors and "read on the watch" in str(sf.errors[0])
