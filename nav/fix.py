@@ -46,30 +46,19 @@ from datetime import datetime
 
 import numpy as np
 
-from .angles import atan2d, cosd, format_dm, sind
+from .angles import cosd, format_dm, sind
 from .errors import NavInputError
+from .fixsolve import (BAD_SIGHT_THRESHOLD, DEFAULT_SIGMA_ARCMIN, HIGH_ALT_DEG,  # noqa: F401
+                       LOW_ALT_DEG, MAX_STEP_NMI, MIN_SIGHTS_FOR_CHECK, PARALLEL, WEAK_CUT_DEG,
+                       Fixes, chi2_2d_scale, cut_angle_deg, solve_batch,
+                       solve_fixes)
 from .reduction import hc_zn
-from .sailing import _rhumb_direct, advance_position, course_speed_made_good
+from .sailing import advance_position, course_speed_made_good
 from .timekeeping import UTC, format_hms
 from .units import NMI_PER_DEG
 
-DEFAULT_SIGMA_ARCMIN = 1.0      # a yacht sextant sight, common practice, no source
-WEAK_CUT_DEG = 30.0             # angle of cut below which a fix is weak (common practice)
-LOW_ALT_DEG = 10.0              # refraction uncertain below this (common practice, no source)
-HIGH_ALT_DEG = 80.0             # near-zenith sights: circles, not straight lines (common practice)
 RUNNING_FIX_MIN = 30.0          # sights advanced across more than this make a running fix
-BAD_SIGHT_THRESHOLD = 3.0       # normalised residual beyond which a sight is flagged
-MIN_SIGHTS_FOR_CHECK = 4
-_DLAT = 1e-6                    # degrees: the difference step for the run's d_lon/d_lat
-MAX_STEP_NMI = 600.0            # one Gauss-Newton step is limited to 10 degrees of arc
-
-
-def chi2_2d_scale(confidence: float) -> float:
-    """√χ²₂(p) = √(−2 ln(1 − p)): 2.4477 for p = 0.95, 1.0 for p = 0.3935."""
-    if not (0.0 < confidence < 1.0):
-        raise NavInputError("confidence must be between 0 and 1", field="confidence",
-                            example="0.95")
-    return math.sqrt(-2.0 * math.log1p(-confidence))
+MAX_FIX_SIGHTS = 200_000        # one fix takes at most this many sights (memory grows linearly)
 
 
 # ---------------------------------------------------------------- data
@@ -241,6 +230,43 @@ def lop_at(sight: Sight, lat_deg: float, lon_deg: float, fix_utc: datetime | Non
                origin_lat_deg=float(lat_deg), origin_lon_deg=float(lon_deg))
 
 
+def lops_at(sights, lat_deg, lon_deg, fix_utc: datetime | None = None) -> tuple:
+    """:func:`lop_at` for many sights at once (each from its own AP/DR), in a few vectorised
+    calls: the same LOPs, in time linear in the number of sights."""
+    sights = list(sights)
+    n = len(sights)
+    lat = np.asarray(lat_deg, float).reshape(n)
+    lon = np.asarray(lon_deg, float).reshape(n)
+    _check_point(lat, lon, "ap_")
+    if fix_utc is not None and fix_utc.tzinfo is None:
+        raise NavInputError("fix_utc must be an aware datetime", field="fix_utc",
+                            example="2026-03-20T12:00:00Z")
+    ho, gha, dec = np.array([(s.ho_deg, s.gha_deg, s.dec_deg) for s in sights], float).reshape(n, 3).T
+    hc, zn = hc_zn(lat, dec, gha + lon)
+    hc, zn = np.atleast_1d(hc), np.atleast_1d(zn)
+    ap_lat, ap_lon, run, run_course = lat.copy(), lon.copy(), np.zeros(n), np.zeros(n)
+    if fix_utc is not None:
+        h = np.array([_hours(s.utc, fix_utc) for s in sights], float)
+        go = np.array([s.moving for s in sights], bool) & (h != 0.0)
+        if go.any():
+            i = np.flatnonzero(go)
+            cmg, smg = course_speed_made_good(
+                [sights[k].course_deg or 0.0 for k in i], [sights[k].speed_kn for k in i],
+                [0.0 if sights[k].set_deg is None else sights[k].set_deg for k in i],
+                [sights[k].drift_kn for k in i])
+            a_lat, a_lon = advance_position(lat[i], lon[i], cmg, smg, h[i])
+            ap_lat[i], ap_lon[i] = a_lat, a_lon
+            run[i] = np.abs(np.asarray(smg) * h[i])
+            run_course[i] = np.where(h[i] > 0, cmg, np.remainder(np.asarray(cmg) + 180.0, 360.0))
+    return tuple(LOP(utc=s.utc, fix_utc=fix_utc or s.utc, body=s.body, label=s.name,
+                     ap_lat_deg=float(ap_lat[k]), ap_lon_deg=float(ap_lon[k]),
+                     zn_deg=float(zn[k]), intercept_nmi=float((ho[k] - hc[k]) * 60.0),
+                     hc_deg=float(hc[k]), ho_deg=s.ho_deg, advanced_nmi=float(run[k]),
+                     advanced_course_deg=float(run_course[k]), origin_lat_deg=float(lat[k]),
+                     origin_lon_deg=float(lon[k]))
+                 for k, s in enumerate(sights))
+
+
 def _plane(lat0, lon0, lat, lon, coslat):
     """(east, north) nmi of (lat, lon) from (lat0, lon0) on the tangent plane."""
     dlon = np.remainder(np.asarray(lon, float) - lon0 + 180.0, 360.0) - 180.0
@@ -253,12 +279,6 @@ def distance_to_lop(lop: LOP, lat_deg, lon_deg):
     coslat = cosd(0.5 * (lop.ap_lat_deg + np.asarray(lat_deg, float)))
     x, y = _plane(lop.ap_lat_deg, lop.ap_lon_deg, lat_deg, lon_deg, coslat)
     out = x * sind(lop.zn_deg) + y * cosd(lop.zn_deg) - lop.intercept_nmi
-    return out[()] if np.ndim(out) == 0 else out
-
-
-def cut_angle_deg(zn_a_deg, zn_b_deg):
-    """Angle of cut of two LOPs with these azimuths, in [0, 90]. Vectorised."""
-    out = np.degrees(np.arcsin(np.clip(np.abs(sind(np.asarray(zn_a_deg) - zn_b_deg)), 0, 1)))
     return out[()] if np.ndim(out) == 0 else out
 
 
@@ -315,28 +335,14 @@ def in_ellipse(fix: Fix, lat_deg, lon_deg):
 
 # ---------------------------------------------------------------- the fix
 
-def _model(lat, lon, arrays):
-    """Residuals (nmi), Zn (deg) and the design matrix A (n, 2) in (east, north) at F."""
-    ho, gha, dec, cmg, smg, dt_h = arrays
-    run = smg * dt_h
-    f_lat, f_lon = np.full_like(ho, lat), np.full_like(ho, lon)
-    plat, plon = _rhumb_direct(f_lat, f_lon, cmg, run)
-    hc, zn = hc_zn(plat, dec, gha + plon)
-    r = (ho - hc) * 60.0
-    # How a step of F moves the observer: east by the same d_lon (so by cos φP/cos φF in miles),
-    # and for a north step also a little east, as the run's d_lon depends on the latitudes.
-    _, plon_n = _rhumb_direct(f_lat + _DLAT, f_lon, cmg, run)
-    dlon_dlat = (np.remainder(plon_n - plon + 180.0, 360.0) - 180.0) / _DLAT
-    cos_p = cosd(plat)
-    a = np.column_stack([sind(zn) * cos_p / cosd(lat), cosd(zn) + sind(zn) * cos_p * dlon_dlat])
-    return r, np.asarray(zn), a
-
-
 def _validate(sights, dr_lat_deg, dr_lon_deg, fix_utc, confidence, max_iter, tol_nmi):
     sights = list(sights)
     if len(sights) < 2:
         raise NavInputError(f"a fix needs at least two sights ({len(sights)} given)",
                             field="sights", example="two or more sights of bodies apart in azimuth")
+    if len(sights) > MAX_FIX_SIGHTS:
+        raise NavInputError(f"{len(sights):,} sights: one fix takes at most {MAX_FIX_SIGHTS:,}",
+                            field="sights", example="the sights of one watch or one day")
     for i, s in enumerate(sights):
         if not isinstance(s, Sight):
             raise NavInputError(f"sight {i + 1} is not a Sight", field="sights").at_row(i + 1)
@@ -354,6 +360,40 @@ def _validate(sights, dr_lat_deg, dr_lon_deg, fix_utc, confidence, max_iter, tol
     return sights
 
 
+def _labels(sights) -> tuple:
+    """Each sight's name; the time of day is formatted once for sights that share it."""
+    hms: dict = {}
+    out = []
+    for s in sights:
+        if s.label:
+            out.append(s.label)
+        else:
+            t = hms.get(s.utc)
+            if t is None:
+                t = hms[s.utc] = format_hms(s.utc)
+            out.append(f"{s.body} at {t}")
+    return tuple(out)
+
+
+def _runs(sights, fix_utc):
+    """Course and signed run (sight minus fix time, nmi) of every sight, in one vectorised call;
+    and the hours from the fix to each sight."""
+    dt_h = np.fromiter(((s.utc - fix_utc).total_seconds() / 3600.0 for s in sights), float,
+                       len(sights))
+    moving = np.fromiter((s.moving for s in sights), bool, len(sights))
+    if not moving.any():
+        return None, dt_h, moving
+    course = np.array([s.course_deg or 0.0 for s in sights], float)
+    speed = np.array([s.speed_kn for s in sights], float)
+    set_ = np.array([0.0 if s.set_deg is None else s.set_deg for s in sights], float)
+    drift = np.array([s.drift_kn for s in sights], float)
+    cmg, smg = course_speed_made_good(course, speed, set_, drift)
+    run = np.asarray(smg) * dt_h
+    if not run.any():
+        return None, dt_h, moving
+    return (np.asarray(cmg, float)[None, :], run[None, :]), dt_h, moving
+
+
 def solve_fix(sights, dr_lat_deg: float, dr_lon_deg: float, fix_utc: datetime | None = None, *,
               confidence: float = 0.95, max_iter: int = 20, tol_nmi: float = 0.01) -> Fix:
     """The weighted least-squares fix (or running fix) of two or more sights at `fix_utc`.
@@ -366,118 +406,58 @@ def solve_fix(sights, dr_lat_deg: float, dr_lon_deg: float, fix_utc: datetime | 
     a-posteriori σ replaces it when the sights scatter more than stated (never when they scatter
     less), so the 95 % ellipse then covers a little more than 95 % (measured about 96–97 % with
     six sights). Neither reveals an error shared by all sights. Bad sights are flagged only with
-    4 or more sights. See the module docstring for the details.
+    4 or more sights. See the module docstring for the details. The solver is
+    :func:`nav.fixsolve.solve_batch`, the same as :func:`solve_fixes` uses, for one fix.
     """
     sights = _validate(sights, dr_lat_deg, dr_lon_deg, fix_utc, confidence, max_iter, tol_nmi)
     if fix_utc is None:
         fix_utc = max(s.utc for s in sights)
     fix_utc = fix_utc.astimezone(UTC)
     n = len(sights)
-    cmg = np.empty(n)
-    smg = np.empty(n)
-    for i, s in enumerate(sights):
-        c, v = course_speed_made_good(s.course_deg or 0.0, s.speed_kn, s.set_deg, s.drift_kn)
-        cmg[i], smg[i] = c, v
-    dt_h = np.array([_hours(fix_utc, s.utc) for s in sights])        # sight minus fix: retire
-    arrays = (np.array([s.ho_deg for s in sights], float),
-              np.array([s.gha_deg for s in sights], float),
-              np.array([s.dec_deg for s in sights], float), cmg, smg, dt_h)
-    sigma = np.array([s.sigma_arcmin for s in sights], float)
-    w = 1.0 / sigma ** 2
-
-    lat, lon = float(dr_lat_deg), float(dr_lon_deg)
-    converged = False
-    iterations = 0
-    for iterations in range(1, int(max_iter) + 1):
-        r, _, a = _model(lat, lon, arrays)
-        normal = a.T @ (a * w[:, None])
-        if abs(np.linalg.det(normal)) < 1e-12 * max(1.0, float(np.trace(normal)) ** 2):
-            raise NavInputError("the lines of position are all parallel: no fix",
-                                field="sights", example="bodies some 30° or more apart in Zn")
-        step = np.linalg.solve(normal, a.T @ (w * r))
-        length = float(np.hypot(*step))
-        if length > MAX_STEP_NMI:
-            step *= MAX_STEP_NMI / length
-        new_lat = lat + step[1] / NMI_PER_DEG
-        if abs(new_lat) >= 89.99:
-            raise NavInputError("the iteration ran to a pole: check the DR and the sights",
-                                field="sights", example="a DR within some 100 nmi of the fix")
-        lon = float(np.remainder(lon + step[0] / (NMI_PER_DEG * cosd(0.5 * (lat + new_lat)))
-                                 + 180.0, 360.0) - 180.0)
-        lat = float(new_lat)
-        if length < tol_nmi:
-            converged = True
-            break
-
-    r, zn, a = _model(lat, lon, arrays)
-    normal = a.T @ (a * w[:, None])
-    cov = np.linalg.inv(normal)                   # (east, north) nmi², a-priori σ
-    dof = n - 2
-    vf = float(math.sqrt(np.sum(w * r * r) / dof)) if dof > 0 else None
-    scale, source = 1.0, "a priori"
-    if n >= MIN_SIGHTS_FOR_CHECK and vf is not None and vf > 1.0:
-        scale, source = vf, "a posteriori"
-    ellipse = _ellipse(cov * scale ** 2, confidence)
-
-    lev = w * np.einsum("ij,jk,ik->i", a, cov, a)                  # leverages h_ii
-    norm_res, flags, uncheckable = _snoop(r, w, lev, n)
-    zn_t = tuple(float(z) for z in zn)
-    cut = _widest_cut(zn)
-    spread = azimuth_spread_deg(zn)
-    moving = np.array([s.moving for s in sights])
+    motion, dt_h, moving = _runs(sights, fix_utc)
+    ho, gha, dec, sigma = np.array([(s.ho_deg, s.gha_deg, s.dec_deg, s.sigma_arcmin)
+                                    for s in sights], float).T
+    res = solve_batch(ho[None, :], gha[None, :], dec[None, :],
+                      np.array([float(dr_lat_deg)]), np.array([float(dr_lon_deg)]),
+                      (1.0 / sigma ** 2)[None, :], motion, confidence=confidence,
+                      max_iter=max_iter, tol_nmi=tol_nmi)
+    if res.failure[0] == PARALLEL:
+        raise NavInputError("the lines of position are all parallel: no fix",
+                            field="sights", example="bodies some 30° or more apart in Zn")
+    if res.failure[0]:
+        raise NavInputError("the iteration ran to a pole: check the DR and the sights",
+                            field="sights", example="a DR within some 100 nmi of the fix")
+    r = res.residuals_nmi[0]
+    vf = float(res.variance_factor[0]) if n > 2 else None
+    scale = float(res.sigma_scale[0])
+    source = "a posteriori" if scale > 1.0 else "a priori"
+    converged, iterations = bool(res.converged[0]), int(res.iterations[0])
+    if n >= MIN_SIGHTS_FOR_CHECK:
+        norm_res = tuple(None if u else float(t)
+                         for t, u in zip(res.normalised_residuals[0], res.unchecked[0]))
+    else:
+        norm_res = (None,) * n
+    flags = tuple(res.flags[0].tolist())
+    uncheckable = tuple(np.flatnonzero(res.unchecked[0]).tolist())
+    cut = float(res.cut_angle_deg[0])
     kind = ("running fix" if np.any(moving & (np.abs(dt_h) * 60.0 > RUNNING_FIX_MIN))
             else "fix")
-    warnings = _warnings(sights, n, r, norm_res, flags, uncheckable, cut, vf, scale, converged,
-                         iterations, tol_nmi)
-    return Fix(utc=fix_utc, lat_deg=lat, lon_deg=lon, kind=kind, n_sights=n,
-               iterations=iterations, converged=converged, ellipse=ellipse,
-               sigma_used_arcmin=tuple(float(s) for s in sigma * scale), sigma_source=source,
-               variance_factor=vf, residuals_nmi=tuple(float(x) for x in r),
-               normalised_residuals=norm_res, flags=flags, zn_deg=zn_t,
-               labels=tuple(s.name for s in sights), cut_angle_deg=cut,
-               azimuth_spread_deg=spread, warnings=tuple(warnings))
+    warnings = _warnings(sights, n, ho, r, norm_res, flags, uncheckable, cut, vf, scale,
+                         converged, iterations, tol_nmi)
+    ellipse = ErrorEllipse(semi_major_nmi=float(res.semi_major_nmi[0]),
+                           semi_minor_nmi=float(res.semi_minor_nmi[0]),
+                           orientation_deg=float(res.orientation_deg[0]),
+                           confidence=float(confidence))
+    return Fix(utc=fix_utc, lat_deg=float(res.lat_deg[0]), lon_deg=float(res.lon_deg[0]),
+               kind=kind, n_sights=n, iterations=iterations, converged=converged,
+               ellipse=ellipse, sigma_used_arcmin=tuple((sigma * scale).tolist()),
+               sigma_source=source, variance_factor=vf, residuals_nmi=tuple(r.tolist()),
+               normalised_residuals=norm_res, flags=flags, zn_deg=tuple(res.zn_deg[0].tolist()),
+               labels=_labels(sights), cut_angle_deg=cut,
+               azimuth_spread_deg=float(res.azimuth_spread_deg[0]), warnings=tuple(warnings))
 
 
-def _ellipse(cov, confidence) -> ErrorEllipse:
-    vals, vecs = np.linalg.eigh(cov)                # ascending
-    k = chi2_2d_scale(confidence)
-    major = vecs[:, 1]
-    orient = float(np.remainder(atan2d(major[0], major[1]), 180.0))
-    if orient >= 180.0:
-        orient = 0.0
-    return ErrorEllipse(semi_major_nmi=float(k * math.sqrt(max(vals[1], 0.0))),
-                        semi_minor_nmi=float(k * math.sqrt(max(vals[0], 0.0))),
-                        orientation_deg=orient, confidence=float(confidence))
-
-
-def _snoop(r, w, lev, n):
-    """Leave-one-out normalised residuals and flags (≥ 4 sights), and uncheckable sights."""
-    if n < MIN_SIGHTS_FOR_CHECK:
-        return tuple(None for _ in range(n)), tuple(False for _ in range(n)), ()
-    red = 1.0 - lev                                 # redundancy numbers
-    total = float(np.sum(w * r * r))
-    stats, flags, unchecked = [], [], []
-    for i in range(n):
-        if red[i] < 1e-3:
-            stats.append(None)
-            flags.append(False)
-            unchecked.append(i)
-            continue
-        s2_other = max(total - w[i] * r[i] ** 2 / red[i], 0.0) / (n - 3)
-        scale = max(1.0, math.sqrt(s2_other))
-        t = float(r[i] * math.sqrt(w[i]) / (scale * math.sqrt(red[i])))
-        stats.append(t)
-        flags.append(abs(t) > BAD_SIGHT_THRESHOLD)
-    return tuple(stats), tuple(flags), tuple(unchecked)
-
-
-def _widest_cut(zn) -> float:
-    z = np.asarray(zn, float)
-    pairs = cut_angle_deg(z[:, None], z[None, :])
-    return float(np.max(pairs))
-
-
-def _warnings(sights, n, r, norm_res, flags, uncheckable, cut, vf, scale, converged,
+def _warnings(sights, n, ho, r, norm_res, flags, uncheckable, cut, vf, scale, converged,
               iterations, tol_nmi):
     out = []
     if not converged:
@@ -491,17 +471,17 @@ def _warnings(sights, n, r, norm_res, flags, uncheckable, cut, vf, scale, conver
     elif cut < WEAK_CUT_DEG:
         out.append(f"azimuths spread too little: the widest angle of cut between any two LOPs "
                    f"is {cut:.0f}°")
-    for s in sights:
+    for i in np.flatnonzero((ho < LOW_ALT_DEG) | (ho > HIGH_ALT_DEG)):
+        s = sights[i]
         if s.ho_deg < LOW_ALT_DEG:
             out.append(f"{s.name}: Ho {format_dm(s.ho_deg)} is below {LOW_ALT_DEG:.0f}°: "
                        "refraction is uncertain")
         elif s.ho_deg > HIGH_ALT_DEG:
             out.append(f"{s.name}: Ho {format_dm(s.ho_deg)} is above {HIGH_ALT_DEG:.0f}°: "
                        "treated as a circle of equal altitude; such a sight is hard to take")
-    for i, flagged in enumerate(flags):
-        if flagged:
-            out.append(f"{sights[i].name}: residual {r[i]:+.1f} nmi is far larger than the rest "
-                       f"allow (normalised {norm_res[i]:+.1f}); a doubtful sight")
+    for i in np.flatnonzero(flags):
+        out.append(f"{sights[i].name}: residual {r[i]:+.1f} nmi is far larger than the rest "
+                   f"allow (normalised {norm_res[i]:+.1f}); a doubtful sight")
     for i in uncheckable:
         out.append(f"{sights[i].name}: no other sight checks it (it alone sets one direction)")
     if n == 3 and vf is not None and vf > BAD_SIGHT_THRESHOLD:

@@ -161,18 +161,49 @@ def clip_line(p, d, xlim, ylim):
 
 # ---------------------------------------------------------------- figure, labels, side panel
 
-def new_chart(sheet: Sheet, xlim, ylim, title: str, subtitle: str):
-    """Figure and axes (limits, aspect, graticule), titles, caution footer and scale bar.
-
-    Returns (fig, ax, placer), the scale bar already blocked for labels.
-    """
+def new_figure():
+    """An empty A4 figure on its own Agg canvas."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
     fig = Figure(figsize=FIG_SIZE_IN, dpi=DPI)
     FigureCanvasAgg(fig)
-    w, h = FIG_SIZE_IN
-    ax = fig.add_axes((AXES_IN[0] / w, AXES_IN[1] / h, AXES_IN[2] / w, AXES_IN[3] / h))
+    return fig
+
+
+def new_chart(sheet: Sheet, xlim, ylim, title: str, subtitle: str, figure=None):
+    """Figure and axes (limits, aspect, graticule), titles, caution footer and scale bar.
+
+    With `figure` (one that an earlier chart was drawn on) its layout is kept: the axes, their
+    graticule settings and the caution footer stay, the earlier sheet's lines, labels, key and
+    panel go; the canvas and renderer stay too, so text measured for one sheet is not measured
+    again for the next. Returns (fig, ax, placer), the scale bar already blocked for labels.
+    """
+    layout = getattr(figure, "_nav_layout", None)
+    if layout is not None:
+        fig = figure
+        ax, head, sub, caution = layout
+        for artist in [*ax.lines, *ax.patches, *ax.texts, *ax.collections, *ax.images,
+                       *fig.legends, *(t for t in fig.texts if t not in (head, sub, caution))]:
+            artist.remove()
+        ax.set_prop_cycle(None)
+        head.set_text(title)
+        sub.set_text(subtitle)
+    else:
+        fig = new_figure() if figure is None else figure
+        fig.clear()
+        w, h = FIG_SIZE_IN
+        ax = fig.add_axes((AXES_IN[0] / w, AXES_IN[1] / h, AXES_IN[2] / w, AXES_IN[3] / h))
+        ax.tick_params(labelsize=9, length=3)
+        ax.grid(True, color="#b8c4cc", lw=0.6)
+        ax.set_axisbelow(True)
+        head = fig.text(AXES_IN[0] / w, 7.98 / h, title, fontsize=13, weight="bold",
+                        va="bottom")
+        sub = fig.text(AXES_IN[0] / w, 7.72 / h, subtitle, fontsize=9, va="bottom", color=GREY)
+        caution = fig.text(0.5, 0.12 / h, "\n".join(textwrap.wrap(CAUTION, 150)), ha="center",
+                           va="bottom", fontsize=9, color="#7a1d00", gid="caution",
+                           bbox=dict(boxstyle="round,pad=0.4", fc="#fff7f2", ec=WARN, lw=0.8))
+        fig._nav_layout = (ax, head, sub, caution)
     ax.set_xlim(*xlim)
     ax.set_ylim(*ylim)
     ax.set_aspect(1.0 / sheet.coslat, adjustable="box", anchor="C")
@@ -181,14 +212,6 @@ def new_chart(sheet: Sheet, xlim, ylim, title: str, subtitle: str):
     yt = _ticks(*ylim, grid_step_arcmin(ylim[1] - ylim[0], int(AXES_IN[3] / 0.85)))
     ax.set_xticks(xt, [lon_tick_label(v) for v in xt])
     ax.set_yticks(yt, [lat_tick_label(v) for v in yt])
-    ax.tick_params(labelsize=9, length=3)
-    ax.grid(True, color="#b8c4cc", lw=0.6)
-    ax.set_axisbelow(True)
-    fig.text(AXES_IN[0] / w, 7.98 / h, title, fontsize=13, weight="bold", va="bottom")
-    fig.text(AXES_IN[0] / w, 7.72 / h, subtitle, fontsize=9, va="bottom", color=GREY)
-    fig.text(0.5, 0.12 / h, "\n".join(textwrap.wrap(CAUTION, 150)), ha="center", va="bottom",
-             fontsize=9, color="#7a1d00", gid="caution",
-             bbox=dict(boxstyle="round,pad=0.4", fc="#fff7f2", ec=WARN, lw=0.8))
     length = nice_scale_nmi(sheet.east_nmi(xlim[1] - xlim[0]))      # along a parallel
     x0, y0 = xlim[0] + 0.04 * (xlim[1] - xlim[0]), ylim[0] + 0.035 * (ylim[1] - ylim[0])
     x1 = float(sheet.move(x0, y0, length, 0.0)[0])

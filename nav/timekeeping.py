@@ -107,7 +107,8 @@ def format_date_hms(t: datetime) -> str:
 
 def format_hms(t: datetime) -> str:
     """Time of day for a human surface: ``18:42:10 UTC``."""
-    return _utc_second(t).strftime("%H:%M:%S") + " UTC"
+    t = _utc_second(t)
+    return f"{t.hour:02d}:{t.minute:02d}:{t.second:02d} UTC"
 
 
 def format_hm(t: datetime) -> str:

@@ -13,7 +13,7 @@ from typing import Sequence
 
 import numpy as np
 
-from .fix import Fix, LOP, Sight, lop_at, solve_fix
+from .fix import Fix, LOP, Sight, lops_at, solve_fix
 from .reduction import SightReductions, reduce_sights
 from .sailing import rhumb_line
 from .sightfile import SightRow
@@ -137,6 +137,21 @@ def run_between(row: SightRow, fix_row: SightRow) -> tuple[float | None, float]:
     return course, dist / hours
 
 
+def runs_between(rows: Sequence[SightRow], fix_row: SightRow) -> list:
+    """:func:`run_between` for every row at once (one vectorised rhumb-line call)."""
+    hours = np.array([(fix_row.utc - r.utc).total_seconds() / 3600.0 for r in rows])
+    course, dist = rhumb_line(np.array([r.dr_lat_deg for r in rows]),
+                              np.array([r.dr_lon_deg for r in rows]),
+                              fix_row.dr_lat_deg, fix_row.dr_lon_deg)
+    course, dist = np.atleast_1d(course), np.atleast_1d(dist)
+    back = hours < 0       # a later sight retired to an earlier fix time: the reverse course
+    course = np.where(back, np.remainder(course + 180.0, 360.0), course)
+    out = []
+    for h, c, d, b in zip(np.abs(hours).tolist(), course.tolist(), dist.tolist(), back.tolist()):
+        out.append((None, 0.0) if h < 1e-9 or d < 1e-9 else (c, d / h))
+    return out
+
+
 def fix_from_rows(rows: Sequence[SightRow], *, fix_utc: datetime | None = None,
                   confidence: float = 0.95, reductions: SightReductions | None = None,
                   runs: Sequence[tuple[float | None, float]] | None = None,
@@ -194,13 +209,14 @@ def _solve(rows, red, fix_utc, confidence, runs) -> FixResult:
     last = rows[-1]
     fix_utc = fix_utc or last.utc
     sights = []
+    runs = runs if runs is not None else runs_between(rows, last)
     for i, row in enumerate(rows):
-        course, speed = runs[i] if runs is not None else run_between(row, last)
+        course, speed = runs[i]
         sights.append(Sight(
             ho_deg=float(red.ho_deg[i]), gha_deg=float(red.gha_deg[i]), dec_deg=float(red.dec_deg[i]),
             utc=row.utc, body=row.body, sigma_arcmin=row.sigma_arcmin,
             course_deg=course, speed_kn=speed, label=f"{row.body} {format_hm(row.utc)}"))
     fix = solve_fix(sights, last.dr_lat_deg, last.dr_lon_deg, fix_utc, confidence=confidence)
-    lops = tuple(lop_at(s, row.dr_lat_deg, row.dr_lon_deg, fix_utc) for s, row in zip(sights, rows))
+    lops = lops_at(sights, [r.dr_lat_deg for r in rows], [r.dr_lon_deg for r in rows], fix_utc)
     return FixResult(fix=fix, reductions=red, sights=tuple(sights), lops=lops,
                      dr_lat_deg=last.dr_lat_deg, dr_lon_deg=last.dr_lon_deg, rows=rows)

@@ -283,29 +283,31 @@ def test_demo_plots_show_the_known_truth(tmp_path, monkeypatch, demo):
 
         def spy(*a, _real=real, _name=name, **k):
             fig = _real(*a, **k)
-            drawn.append((_name, a, k, fig))
+            # the demo draws every plot on one figure: read what this one shows now
+            stars = [s.get_ydata()[0] for s in fig.findobj() if s.get_gid() == "known"]
+            key = [t.get_text() for t in fig.legends[0].get_texts()]
+            summary = " ".join(t.get_text() for t in fig.texts if t.get_gid() == "summary")
+            drawn.append((_name, a, k, (stars, key, summary)))
             return fig
         monkeypatch.setattr(plotting, name, spy)
     replay_demo(tmp_path, say=lambda *_: None)
     sheets = [d for d in drawn if d[0] == "plot_fix_sheet"]
-    (_, (pts, fixes), passage_kw, passage_fig), = [d for d in drawn if d[0] == "plot_passage"]
+    (_, (pts, fixes), passage_kw, (_, texts, summary)), = [d for d in drawn
+                                                           if d[0] == "plot_passage"]
     assert len(sheets) >= 8
-    for _, (fix, _lops), kw, fig in sheets:
+    for _, (fix, _lops), kw, (stars, key, _) in sheets:
         lat, lon = true_position(track, fix.utc)       # the truth file, read independently
         assert kw["known"][:2] == (lat, lon)
-        star, = [a for a in fig.findobj() if a.get_gid() == "known"]
-        assert star.get_ydata()[0] == pytest.approx(lat, abs=1e-6 * ARCSEC)
-        texts = [t.get_text() for t in fig.legends[0].get_texts()]
-        assert "known position (demo)" in texts
+        star, = stars
+        assert star == pytest.approx(lat, abs=1e-6 * ARCSEC)
+        assert "known position (demo)" in key
     ref = passage_kw["reference_track"]
     assert [(p.utc, p.lat_deg) for p in ref] == [(parse_utc(r["utc"]), float(r["lat_deg"]))
                                                  for r in rows]
     assert all(abs(p.lon_deg - float(r["lon_deg"])) <= COORD_ROUND_DEG for p, r in zip(ref, rows))
-    texts = [t.get_text() for t in passage_fig.legends[0].get_texts()]
     assert "known track (demo)" in texts and "DR track" in texts
     # the demo's ellipses (a few nmi) hide under the markers of a 500-nmi plot: not in the key
     assert not any("ellipse" in t for t in texts)
-    summary = " ".join(t.get_text() for t in passage_fig.texts if t.get_gid() == "summary")
     assert "not drawn" in summary
 
 

@@ -36,6 +36,7 @@ from ..errors import NavInputError, printable
 
 DEMO_NAME = "demo-azores-madeira"
 DEMO_OUT = "demo_output"
+DEMO_WORKERS = 2                          # processes drawing the demo's plots
 KNOWN_LABEL = "known position (demo)"     # the demo's truth, as its plots name it
 TRACK_LABEL = "known track (demo)"
 
@@ -180,15 +181,18 @@ class DemoFix:
     sheet: Path
 
 
-def replay_demo(out_dir: Path, say=print, replace: bool = False) -> list[DemoFix]:
+def replay_demo(out_dir: Path, say=print, replace: bool = False,
+                workers: int = 1) -> list[DemoFix]:
     """Replay the demo into `out_dir` (created), printing as it goes; returns the fixes.
-    Its pictures follow the file rules of nav.files: an existing one only with `replace`."""
+    Its pictures follow the file rules of nav.files: an existing one only with `replace`.
+
+    The plots are drawn on one figure, or with `workers` > 1 in that many worker processes
+    while the fixes are computed (:class:`nav.commands.sheet_pool.SheetPool`)."""
     from ..angles import format_lat, format_lon
     from ..export import ExportPoint
     from ..fix import in_ellipse
     from ..logbook import load_log
     from ..passage import Passage, passage_before
-    from ..plotting import plot_fix_sheet, plot_passage
     from ..render import fix_lines
     from ..sailing import rhumb_line
     from ..timekeeping import format_hm
@@ -228,67 +232,73 @@ def replay_demo(out_dir: Path, say=print, replace: bool = False) -> list[DemoFix
     say("  The sights were made up from a known true track, with random errors (σ 0.5′), one "
         "deliberate blunder, and a current the crew did not know; so every fix below can be "
         "checked against where the vessel really was.")
-    out: list[DemoFix] = []
-    replayed = []
-    for k, e in enumerate(fixes, 1):
-        before = passage_before(passage, e.id)
-        result, used = before.fix_from(list(e["sight_ids"]))
-        f = result.fix
-        dr = before.where(f.utc)
-        t_lat, t_lon = true_position(track, f.utc)
-        bearing, err = (float(x) for x in rhumb_line(t_lat, t_lon, f.lat_deg, f.lon_deg))
-        dr_err = float(rhumb_line(t_lat, t_lon, dr.lat_deg, dr.lon_deg)[1])
-        logged = float(rhumb_line(e["lat_deg"], e["lon_deg"], f.lat_deg, f.lon_deg)[1])
-        inside = bool(in_ellipse(f, t_lat, t_lon))
-        run_h = (f.utc - min(s.utc for s in result.sights)).total_seconds() / 3600.0
-        say("")
-        say(f"[{k}/{len(fixes)}] {e.id}: {e.get('note', f.kind)}")
-        for line in fix_lines(f, dr_lat_deg=dr.lat_deg, dr_lon_deg=dr.lon_deg):
-            say(line)
-        say(f"  logged as    {e.id} ({e['fix_kind'].replace('_', ' ')}); computed again now, "
-            f"{logged:.2f} nmi from the logged position")
-        say(f"  known        {format_lat(t_lat)}  {format_lon(t_lon)}  (the demo's true track)")
-        say(f"  fix error    {err:.2f} nmi, the fix lies {bearing:05.1f}° from the known "
-            f"position; {'inside' if inside else 'OUTSIDE'} the "
-            f"{f.ellipse.confidence * 100:g}% ellipse")
-        say(f"  DR error     {dr_err:.2f} nmi (the DR knows nothing of the current)")
-        flagged = []
-        for i, bad in enumerate(f.flags):
-            if not bad:
-                continue
-            entry = used[i]
-            st = sight_truth.get(entry.id, {})
-            blunder = float(st.get("blunder_arcmin") or 0.0)
-            flagged.append(entry.id)
-            what = (f"the demo put a {blunder:+.1f}′ blunder into this sight on purpose"
-                    if blunder else "this sight carries only its random error")
-            say(f"  residual check: {f.labels[i]} ({entry.id}) flagged, normalised residual "
-                f"{f.normalised_residuals[i]:+.1f}: {what}")
-        if e.id in struck:
-            say(f"  struck       by {struck[e.id].id}: {struck[e.id]['reason']}")
-        if not flagged and run_h * 60.0 > 30.0:
-            say(f"  running fix: the earlier sight was advanced {run_h:.1f} h along the DR "
-                "legs; the unknown current over that run is an error the ellipse cannot show")
-        sheet = out_dir / f"fix-{k:02d}-{f.utc:%m%d}-{format_hm(f.utc).replace(':', '')}.png"
-        plot_fix_sheet(f, result.lops, dr=(dr.lat_deg, dr.lon_deg, f.utc),
-                       known=(t_lat, t_lon, f.utc), known_label=KNOWN_LABEL,
-                       title=f"{short} (invented demo): {f.kind} {f.utc:%d %b %Y} "
-                             f"{format_hm(f.utc)} UTC ({e.id}" + (", struck)" if e.id in struck
-                                                                  else ")"), path=sheet,
-                       replace=replace)
-        say(f"  plotting sheet {sheet}")
-        out.append(DemoFix(e.id, f.kind, f.utc, f.n_sights, err, bearing, inside, dr_err, logged,
-                           run_h, tuple(flagged), e.id in struck, sheet))
-        if e.id not in struck:
-            replayed.append(f)
+    from .sheet_pool import SheetPool
 
-    pts = [ExportPoint(t, lat, lon, basis.replace(" ", "_"), "")
-           for t, lat, lon, basis in passage.track_points()]
-    plot_path = out_dir / "passage.png"
-    truth = [ExportPoint(p.utc, p.lat_deg, p.lon_deg, "other", "") for p in track]
-    plot_passage(pts, replayed, reference_track=truth, reference_label=TRACK_LABEL,
-                 title=f"{short} (invented demo): Azores to Madeira, DR track, fixes and the "
-                       "known track", path=plot_path, replace=replace)
+    pool = SheetPool(workers)
+    try:
+        out: list[DemoFix] = []
+        replayed = []
+        for k, e in enumerate(fixes, 1):
+            before = passage_before(passage, e.id)
+            result, used = before.fix_from(list(e["sight_ids"]))
+            f = result.fix
+            dr = before.where(f.utc)
+            t_lat, t_lon = true_position(track, f.utc)
+            bearing, err = (float(x) for x in rhumb_line(t_lat, t_lon, f.lat_deg, f.lon_deg))
+            dr_err = float(rhumb_line(t_lat, t_lon, dr.lat_deg, dr.lon_deg)[1])
+            logged = float(rhumb_line(e["lat_deg"], e["lon_deg"], f.lat_deg, f.lon_deg)[1])
+            inside = bool(in_ellipse(f, t_lat, t_lon))
+            run_h = (f.utc - min(s.utc for s in result.sights)).total_seconds() / 3600.0
+            say("")
+            say(f"[{k}/{len(fixes)}] {e.id}: {e.get('note', f.kind)}")
+            for line in fix_lines(f, dr_lat_deg=dr.lat_deg, dr_lon_deg=dr.lon_deg):
+                say(line)
+            say(f"  logged as    {e.id} ({e['fix_kind'].replace('_', ' ')}); computed again now, "
+                f"{logged:.2f} nmi from the logged position")
+            say(f"  known        {format_lat(t_lat)}  {format_lon(t_lon)}  (the demo's true track)")
+            say(f"  fix error    {err:.2f} nmi, the fix lies {bearing:05.1f}° from the known "
+                f"position; {'inside' if inside else 'OUTSIDE'} the "
+                f"{f.ellipse.confidence * 100:g}% ellipse")
+            say(f"  DR error     {dr_err:.2f} nmi (the DR knows nothing of the current)")
+            flagged = []
+            for i, bad in enumerate(f.flags):
+                if not bad:
+                    continue
+                entry = used[i]
+                st = sight_truth.get(entry.id, {})
+                blunder = float(st.get("blunder_arcmin") or 0.0)
+                flagged.append(entry.id)
+                what = (f"the demo put a {blunder:+.1f}′ blunder into this sight on purpose"
+                        if blunder else "this sight carries only its random error")
+                say(f"  residual check: {f.labels[i]} ({entry.id}) flagged, normalised residual "
+                    f"{f.normalised_residuals[i]:+.1f}: {what}")
+            if e.id in struck:
+                say(f"  struck       by {struck[e.id].id}: {struck[e.id]['reason']}")
+            if not flagged and run_h * 60.0 > 30.0:
+                say(f"  running fix: the earlier sight was advanced {run_h:.1f} h along the DR "
+                    "legs; the unknown current over that run is an error the ellipse cannot show")
+            sheet = out_dir / f"fix-{k:02d}-{f.utc:%m%d}-{format_hm(f.utc).replace(':', '')}.png"
+            pool.draw(
+                "plot_fix_sheet", f, result.lops, dr=(dr.lat_deg, dr.lon_deg, f.utc),
+                known=(t_lat, t_lon, f.utc), known_label=KNOWN_LABEL, path=sheet,
+                title=f"{short} (invented demo): {f.kind} {f.utc:%d %b %Y} {format_hm(f.utc)} UTC "
+                      f"({e.id}" + (", struck)" if e.id in struck else ")"), replace=replace)
+            say(f"  plotting sheet {sheet}")
+            out.append(DemoFix(e.id, f.kind, f.utc, f.n_sights, err, bearing, inside, dr_err, logged,
+                               run_h, tuple(flagged), e.id in struck, sheet))
+            if e.id not in struck:
+                replayed.append(f)
+
+        pts = [ExportPoint(t, lat, lon, basis.replace(" ", "_"), "")
+               for t, lat, lon, basis in passage.track_points()]
+        plot_path = out_dir / "passage.png"
+        truth = [ExportPoint(p.utc, p.lat_deg, p.lon_deg, "other", "") for p in track]
+        pool.draw("plot_passage", pts, replayed, reference_track=truth, reference_label=TRACK_LABEL,
+                  title=f"{short} (invented demo): Azores to Madeira, DR track, fixes and the "
+                        "known track", path=plot_path, replace=replace)
+        pool.close()
+    finally:
+        pool.abandon()
     say("")
     say("Fixes against the known track")
     say(f"  {'#':>2}  {'UTC':<16} {'kind':<12} {'sights':>6}  {'error':>9}  {'95% ellipse':<11}"
@@ -304,7 +314,8 @@ def replay_demo(out_dir: Path, say=print, replace: bool = False) -> list[DemoFix
 
 def run_demo(args) -> int:
     t0 = time.perf_counter()
-    replay_demo(Path(args.out), replace=args.replace)
+    replay_demo(Path(args.out), replace=args.replace,
+                workers=min(DEMO_WORKERS, os.cpu_count() or 1))
     print(f"\nReplayed in {time.perf_counter() - t0:.1f} s.")
     print(CAUTION)
     return 0

@@ -162,7 +162,14 @@ def run_fix(args) -> int:
     if not (0.0 < args.confidence < 1.0):
         raise NavInputError("--confidence must be between 0 and 1", field="confidence",
                             example="0.95")
-    rows, red = _reduce(args, _load(args))
+    from ..fix import MAX_FIX_SIGHTS
+
+    rows = _load(args)
+    if len(rows) > MAX_FIX_SIGHTS:
+        raise NavInputError(f"{len(rows):,} sights: one fix takes at most {MAX_FIX_SIGHTS:,} "
+                            "(memory grows with the sights)", field="file",
+                            example="split the file, one fix for each watch or day")
+    rows, red = _reduce(args, rows)
     if len(rows) < 2:
         raise NavInputError("a fix needs at least two sights", field="file",
                             example="two or more rows of sights")
