@@ -156,26 +156,34 @@ def pipe_session(keys, log_path, *, history=None, output=None, **kw) -> tuple[in
 
     chunks = [keys] if isinstance(keys, str) else list(keys)
     buf = StringIO()
+    missed: list[str] = []                 # what the sender waited for in vain, or its error
     with create_pipe_input() as inp:
         def send(app_session):
-            for chunk in chunks:
-                if isinstance(chunk, Shows):
-                    deadline = time.monotonic() + WAIT_S
-                    while time.monotonic() < deadline:
-                        app = app_session.app
-                        if app is not None and chunk.seen(app.current_buffer):
-                            break
-                        time.sleep(0.01)
-                    continue
-                inp.send_text(chunk)
-            inp.close()
+            try:
+                for chunk in chunks:
+                    if isinstance(chunk, Shows):
+                        deadline = time.monotonic() + WAIT_S
+                        while not chunk.seen_in(app_session.app):
+                            if time.monotonic() > deadline:
+                                missed.append(f"the line never showed {chunk!r}")
+                                return
+                            time.sleep(0.01)
+                        continue
+                    inp.send_text(chunk)
+            except OSError as e:           # the session ended before its keys were sent
+                missed.append(f"keys not sent: {e}")
+            finally:
+                inp.close()
 
         with create_app_session(input=inp, output=output or DummyOutput()) as app_session:
             sender = threading.Thread(target=send, args=(app_session,), daemon=True)
             sender.start()
             status = run_shell(log_path, stdout=buf, stderr=buf, interactive=True,
                                history_file=history, clock=clock, refresh_interval=None, **kw)
-        sender.join(timeout=10)
+        sender.join(timeout=WAIT_S)
+    # A mark the session never reached fails here, by name, instead of the keys after it
+    # going down anyway and the test failing (or passing) on a line typed too early.
+    assert not sender.is_alive() and not missed, missed or "the key sender did not finish"
     return status, buf.getvalue()
 
 
@@ -186,7 +194,14 @@ class Shows:
     def __init__(self, text: str, menu: bool = False):
         self.text, self.menu = text, menu
 
-    def seen(self, buffer) -> bool:
+    def __repr__(self) -> str:
+        return f"Shows({self.text!r}, menu={self.menu})"
+
+    def seen_in(self, app) -> bool:
+        """Whether the running prompt (not one ended, nor none between two) shows the mark."""
+        if app is None or not app.is_running or app.is_done:
+            return False
+        buffer = app.current_buffer
         state = buffer.complete_state
         return buffer.text == self.text and (not self.menu or bool(state and state.completions))
 
