@@ -94,6 +94,7 @@ def test_shell_carries_the_caution_beyond_the_predictions(tmp_path, times, ends)
         _check_beyond(" ".join(text.split()), ends)
     assert parts["sight"].count(CAUTION_HEAD) == 3          # one per sight shown, as logged
     assert parts["sky"].count(CAUTION_HEAD) == 1            # once, not per event
+    assert parts["fix"].count(CAUTION_HEAD) == 1
 
 
 def _cli(capsys, argv):
@@ -114,6 +115,7 @@ def _cli_runs(t: datetime):
         "plan": ["plan", "--utc", _iso(t), *dr],
         "identify": ["identify", "--utc", _iso(t), "--hs", "45 00.0", "--zn", "060", *dr],
         "compass": ["compass", "--body", "Vega", "--utc", _iso(t), "--bearing", "060", *dr],
+        "latitude": ["latitude", "--body", "Polaris", "--utc", _iso(t), "--hs", "30 30.0", *dr],
         "equal": ["equal-altitudes", "--first", _iso(t.replace(hour=12)),
                   "--second", _iso(t.replace(hour=18)), *dr],
     }
@@ -135,3 +137,20 @@ def test_cli_carries_the_caution_beyond_the_predictions(capsys, times, ends):
         ut1 = [w for w in doc["warnings"] if str(w).startswith(CAUTION_HEAD)]
         assert len(ut1) == 1, name
         _check_beyond(ut1[0], ends)
+
+
+def test_cli_series_carries_the_caution_once(tmp_path, capsys, times, ends):
+    # the invented dusk-run example (a run of Dubhe) moved to each date
+    from pathlib import Path
+
+    text = (Path(__file__).resolve().parents[1] / "examples" / "dusk-run.csv").read_text()
+    for when, expected in (("inside", 0), ("beyond", 1)):
+        path = tmp_path / f"{when}.csv"
+        path.write_text(text.replace("2026-03-21", times[when].date().isoformat()))
+        out = _cli(capsys, ["series", str(path)])
+        assert "averaged sight" in out and out.count(f"! {CAUTION_HEAD}") == expected
+        doc = _cli(capsys, ["series", str(path), "--json"])
+        assert doc["runs"] and len(doc.get("warnings", [])) == expected
+        if expected:
+            _check_beyond(out, ends)
+            _check_beyond(doc["warnings"][0], ends)
