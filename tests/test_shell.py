@@ -723,3 +723,14 @@ def test_without_a_log_the_session_asks_for_a_passage(tmp_path, history):
     assert re.search(r"e0002  note +2026-06-14 23:30:00  one", out)   # the clock of the test
     assert "+note one" in history.read_text(encoding="utf-8")   # the answers are not history
     assert "Biscay crossing" not in history.read_text(encoding="utf-8")
+
+
+def test_help_is_wrapped_to_the_terminal_not_cut_mid_word(state):
+    # In a terminal of 80 columns every help line fits, and no word is split (the terminal
+    # would otherwise cut "each" into "ea" / "ch"): a property of the screen, no source needed.
+    state._width = lambda: 80
+    out = run_lines(state, "help fix")
+    lines = [x for x in out.splitlines() if x]
+    assert lines and all(len(x) < 80 for x in lines)
+    words = " ".join(x.strip() for x in lines).split()
+    assert "each" in words
