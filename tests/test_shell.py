@@ -734,3 +734,11 @@ def test_help_is_wrapped_to_the_terminal_not_cut_mid_word(state):
     assert lines and all(len(x) < 80 for x in lines)
     words = " ".join(x.strip() for x in lines).split()
     assert "each" in words
+
+
+def test_a_time_that_is_neither_iso_nor_a_time_of_day_shows_both_forms(state):
+    # The shell's `at` takes an ISO 8601 instant or a UTC time of day (README, TIME): a bad one
+    # is refused with an example of each, not of ISO 8601 alone.
+    out = run_lines(state, "sight Vega 34 12.3 at 32 12.4")
+    (err,) = [x for x in out.splitlines() if x.startswith("error:")]
+    assert "field 'at'" in err and "21:15:48" in err and "2026-06-20T21:15:48Z" in err
