@@ -43,9 +43,9 @@ def register(sub) -> None:
 
 
 def read_bearing(text: str, field: str) -> float:
-    from ..angles import norm360, parse_angle
+    from ..angles import parse_bearing
 
-    return float(norm360(parse_angle(text, field, min_deg=0.0, max_deg=360.0)))
+    return parse_bearing(text, field)
 
 
 def run_compass(args) -> int:

@@ -384,6 +384,7 @@ def run_where(st, req) -> None:
         st.say(f"  course       {w.course_deg:05.1f}°, speed {w.speed_kn:g} kn")
     if hours > 12:
         st.say(f"  caution: the position rests on a DR of {hours:.0f} h; take sights")
+    st.say(*textwrap.wrap(CAUTION, 78))
 
 
 def run_almanac(st, req) -> None:

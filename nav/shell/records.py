@@ -339,7 +339,8 @@ def run_help(st, req) -> None:
         raise NavInputError(f"no help on '{topic}'", field="topic",
                             example="help sight, help time")
     c = COMMANDS[key]
-    st.say(f"{c.syntax}", f"  {c.summary}", *(f"  {d}" for d in c.details))
+    st.say(*st.wrap(c.syntax), *(x for d in (c.summary, *c.details)
+                                 for x in st.wrap(f"  {d}", "    ")))
     if c.examples:
         st.say("  for example:", *(f"    {x}" for x in c.examples))
 

@@ -154,7 +154,7 @@ def _compass_words(args, line):
 
 def parse_compass(args, line, ctx) -> Request:
     """``compass BODY BEARING heading H [var V] [amplitude [visible]] (at T | zt T) [note T]``."""
-    from ..angles import norm360, parse_angle, parse_east_west
+    from ..angles import parse_bearing, parse_east_west
     from ..fields import parse_body
     from .times import parse_time_options
 
@@ -163,11 +163,11 @@ def parse_compass(args, line, ctx) -> Request:
         raise NavInputError("give the body and its compass bearing", field="compass",
                             example=COMPASS_EXAMPLE)
     body = parse_body(" ".join(t.text for t in pos[:-1]), "body")
-    bearing = float(norm360(parse_angle(pos[-1].text, "bearing", min_deg=0, max_deg=360)))
+    bearing = parse_bearing(pos[-1].text, "bearing")
     if "heading" not in opts:
         raise NavInputError("a compass check needs the ship's head by the same compass",
                             field="heading", example=COMPASS_EXAMPLE)
-    heading = float(norm360(parse_angle(opts["heading"], "heading", min_deg=0, max_deg=360)))
+    heading = parse_bearing(opts["heading"], "heading")
     var = parse_east_west(opts["var"], "var") if "var" in opts else None
     if "visible" in flags and "amplitude" not in flags:
         raise NavInputError("'visible' is for an amplitude", field="visible",
@@ -239,7 +239,7 @@ IDENTIFY_EXAMPLE = "identify 51 00.0 076 at 23:30:00"
 
 def parse_identify(args, line, ctx) -> Request:
     """``identify HS ZN (at TIME | zt TIME)``: the last positional word is the bearing."""
-    from ..angles import norm360, parse_angle
+    from ..angles import parse_bearing
     from ..fields import SIGHT_FIELD_BY_NAME
     from .times import parse_time_options
     from .words import split_words
@@ -249,7 +249,7 @@ def parse_identify(args, line, ctx) -> Request:
         raise NavInputError("give the sextant altitude and the true bearing", field="identify",
                             example=IDENTIFY_EXAMPLE)
     hs = SIGHT_FIELD_BY_NAME["hs"].parse(" ".join(t.text for t in pos[:-1]), "hs")
-    zn = float(norm360(parse_angle(pos[-1].text, "zn", min_deg=0.0, max_deg=360.0)))
+    zn = parse_bearing(pos[-1].text, "zn")
     t = parse_time_options(opts, ctx, sight=True, required=True)
     return Request("identify", time=t, args={"hs": hs, "zn": zn})
 
