@@ -51,7 +51,7 @@ def _iso(t: datetime) -> str:
 
 def _check_beyond(text: str, ends) -> None:
     measured, predicted = ends
-    assert f"beyond the IERS predictions" in text
+    assert "beyond the IERS predictions" in text
     assert f"after {predicted:%Y-%m-%d}" in text and f"measured to {measured:%Y-%m-%d}" in text
     assert "GHA may be off by" in text
 
