@@ -119,11 +119,9 @@ def run_mark(args) -> int:
     if args.out:
         print(f"  marked sheets and class_summary.csv written to {args.out}")
     print()
-    for m in ut1:
-        print(f"! {m}")
-        print()
-    print(CAUTION)
-    return 0
+    from .vessel_args import close_text
+
+    return close_text(ut1)
 
 
 def run_exercise(args) -> int:

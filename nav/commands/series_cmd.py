@@ -51,8 +51,6 @@ def run_series(args) -> int:
         for line in series_lines(run):
             print(line)
         print()
-    for m in ut1:
-        print(f"! {m}")
-        print()
-    print(CAUTION)
-    return 0
+    from .vessel_args import close_text
+
+    return close_text(ut1)

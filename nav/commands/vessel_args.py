@@ -91,7 +91,12 @@ def emit(args, as_dict, as_lines, instants=()) -> int:
         return 0
     print("\n".join(as_lines()))
     print()
-    for m in ut1:
+    return close_text(ut1)
+
+
+def close_text(ut1_lines) -> int:
+    """End a text report: each UT1 caution line, then nav's caution; exit status 0."""
+    for m in ut1_lines:
         print(f"! {m}")
         print()
     print(CAUTION)
