@@ -17,6 +17,7 @@ from .errors import NavError, printable
 COMMAND_MODULES = (
     "nav.commands.almanac_cmd",
     "nav.commands.sights_cmd",
+    "nav.commands.series_cmd",
     "nav.commands.passage_cmd",
     "nav.commands.review_cmd",
     "nav.commands.noon_cmd",

@@ -197,6 +197,34 @@ def _speed(text: str, field: str = "speed_kn") -> float:
     return parse_number(text, field, min_value=0.0, max_value=60.0, example="6.5")
 
 
+def _set(text: str, field: str = "set_deg") -> float:
+    value = parse_number(text, field, min_value=0.0, max_value=360.0,
+                         example="210 (true, the direction the current flows toward)")
+    return 0.0 if value == 360.0 else value
+
+
+def _drift(text: str, field: str = "drift_kn") -> float:
+    return parse_number(text, field, min_value=0.0, max_value=10.0, example="0.8")
+
+
+def _watch_rate(text: str, field: str = "watch_rate_s_per_day") -> float:
+    return parse_number(text, field, min_value=-60.0, max_value=60.0,
+                        example="+0.5 (seconds a day, + when the watch gains)")
+
+
+def _watch_error_date(text: str, field: str = "watch_error_date"):
+    from .timekeeping import parse_date_or_utc
+
+    return parse_date_or_utc(text, field)
+
+
+def _fix_label(text: str, field: str = "fix") -> str:
+    label = str(text).strip()
+    if len(label) > 40:
+        raise NavInputError("a fix label is at most 40 characters", field=field, example="noon")
+    return label
+
+
 def _sigma(text: str, field: str = "sigma_arcmin") -> float:
     return parse_number(text, field, min_value=0.05, max_value=30.0, example="1.0")
 
@@ -234,6 +262,10 @@ SIGHT_FIELDS: tuple[FieldSpec, ...] = (
     FieldSpec("watch_time", parse_clock_time, False, None, "15:42:10", "the watch's reading"),
     FieldSpec("watch_error", _watch_error_s, False, None, "17 s slow", "watch error: 1 min 5 s fast"),
     FieldSpec("zone", _zone_h, False, None, "+10", "zone description ZD: UTC = ZT + ZD"),
+    FieldSpec("watch_rate_s_per_day", _watch_rate, False, None, "+0.5",
+              "the watch's daily rate, s/day, + when it gains (with watch_error_date)"),
+    FieldSpec("watch_error_date", _watch_error_date, False, None, "2026-06-01",
+              "when watch_error was measured: ISO date (00:00 UTC) or instant"),
     FieldSpec("body", parse_body, True, None, "Sun", "body observed"),
     FieldSpec("limb", parse_limb, False, None, "lower", "lower, upper or center (Sun, Moon)"),
     FieldSpec("hs", parse_hs, True, None, "34 12.3", "sextant altitude: 34.205, 34 12.3 or 34°12.3' "
@@ -253,6 +285,10 @@ SIGHT_FIELDS: tuple[FieldSpec, ...] = (
     FieldSpec("gha", _gha, False, None, "283 07.9", "GHA prescribed by an exercise (replaces nav's)"),
     FieldSpec("dec", _dec, False, None, "12 03.4 S", "Dec prescribed by an exercise (replaces nav's)"),
     FieldSpec("note", parse_note, False, "", "hazy horizon", f"free text, up to {MAX_NOTE_CHARS} characters"),
+    FieldSpec("set_deg", _set, False, None, "210",
+              "current's set, degrees true (toward), from this row on"),
+    FieldSpec("drift_kn", _drift, False, None, "0.8", "current's drift, knots, from this row on"),
+    FieldSpec("fix", _fix_label, False, "", "dawn", "label: rows with one label form one fix"),
 )
 SIGHT_FIELD_BY_NAME = {f.name: f for f in SIGHT_FIELDS}
 WATCH_TIME_FIELDS = ("date", "watch_time", "watch_error", "zone")

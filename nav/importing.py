@@ -42,6 +42,14 @@ def entries_from_rows(rows: Sequence[SightRow], source: str) -> list[dict]:
         if dr:
             out.append({"kind": "dr", "utc": r.utc, "time_text": typed["utc"], **dr,
                         "note": f"from {where}"})
+        if "set_deg" in typed or "drift_kn" in typed:      # issue 10: a current from this row on
+            from .current import row_currents
+
+            cur = row_currents([r])[0]
+            out.append({"kind": "current", "utc": r.utc, "time_text": typed["utc"],
+                        "set": typed.get("set_deg", "0"), "set_deg": cur.set_deg if cur else 0.0,
+                        "drift": typed.get("drift_kn", "0"),
+                        "drift_kn": cur.drift_kn if cur else 0.0, "source": where})
         sight = {"kind": "sight", "body": r.body, "utc": r.utc, "time_source": "utc",
                  "time_text": typed["utc"], "hs": typed["hs"], "hs_deg": r.hs_deg}
         if r.limb is not None:
@@ -54,8 +62,12 @@ def entries_from_rows(rows: Sequence[SightRow], source: str) -> list[dict]:
         if "sigma_arcmin" in typed:
             sight["sigma_arcmin"] = r.sigma_arcmin
         sight["source"] = where
-        if r.note:
-            sight["note"] = r.note
+        note = r.note
+        if typed.get("fix"):                # the file's fix label: kept in the note, said so
+            note = f"{note}; " if note else ""
+            note += f"fix '{typed['fix']}' in {source}"
+        if note:
+            sight["note"] = note
         out.append(sight)
     return out
 

@@ -55,7 +55,8 @@ from .logschema import (  # SCHEMA and COMMON are re-exported: part of this modu
 FORMAT, FORMAT_VERSION = "nav-passage-log", 2
 READ_VERSIONS = (1, 2)
 MAX_LOG_BYTES = 50 * 1024 * 1024      # ~200 000 sights: far more than any passage
-SUPERSEDABLE = ("setting", "dr", "sight", "fix", "note", "compass_check")
+SUPERSEDABLE = ("setting", "dr", "sight", "fix", "note", "compass_check", "current",
+                "watch_check")
 _TORN_ID = re.compile(rb'"id"\s*:\s*"e(\d{4,9})"')
 
 

@@ -108,7 +108,8 @@ SCHEMA: dict[str, dict[str, Field]] = {
             "ellipse_semi_minor_nmi": Field("num", lo=0, hi=10_000),
             "ellipse_orientation_deg": Field("num", lo=0, hi=180, hi_open=True),
             "ellipse_confidence": Field("num", lo=0, hi=1),
-            "warnings": Field("texts"), "note": _NOTE},
+            "warnings": Field("texts"), "note": _NOTE,
+            "set_drift": Field("object")},      # issue 10: {set_deg, drift_kn, since_utc}
     "note": {"text": Field("note", True, max_len=MAX_NOTE), "utc": Field("utc")},
     # A compass check (issue 9): a body's true bearing against the compass, with the ship's
     # head by that compass, so the deviation can be listed per heading over the passage.
@@ -124,7 +125,16 @@ SCHEMA: dict[str, dict[str, Field]] = {
                       "deviation_deg": Field("num", lo=-180, hi=180),
                       "lat_deg": Field("num", True, -90, 90),
                       "lon_deg": Field("num", True, -180, 180), "note": _NOTE},
-
+    # issue 10: a current in force from a time on (entered, or applied from a fix), and a
+    # comparison of a watch with a reference time
+    "current": {"utc": Field("utc", True), "time_text": Field("text"),
+                **_typed("set", "set_deg", 0, 360, required=True, hi_open=True),
+                **_typed("drift", "drift_kn", 0, 20, required=True),
+                "source": Field("text"), "note": _NOTE},
+    "watch_check": {"utc": Field("utc", True), "watch_reading": Field("text", True),
+                    "watch_error_s": Field("num", True, -3600, 3600),
+                    "reference": Field("enum", True, choices=("time signal", "gps", "reference")),
+                    "watch": Field("text", max_len=40), "note": _NOTE},
     "strike": {"target": Field("id", True), "reason": Field("text", True, max_len=500)},
     "correct": {"target": Field("id", True), "reason": Field("text", True, max_len=500),
                 "replacement": Field("object", True)},
@@ -151,6 +161,16 @@ def _rules(kind: str, o: Mapping) -> tuple[str | None, str] | None:
         for name in ("zone_description_h", "watch_error_s"):
             if name not in o:
                 return name, "is missing: a time read on a watch needs its ZD and watch error"
+    if kind == "fix" and "set_drift" in o:
+        sd = o["set_drift"]
+        spec = {"set_deg": Field("num", True, 0, 360, hi_open=True),
+                "drift_kn": Field("num", True, 0, 100), "since_utc": Field("utc", True)}
+        if not isinstance(sd, Mapping) or set(sd) != set(spec):
+            return "set_drift", "must hold set_deg, drift_kn and since_utc"
+        for name, f in spec.items():
+            msg = _check_value(f, sd[name])
+            if msg:
+                return f"set_drift.{name}", msg
     if kind == "fix":
         if {"ellipse_orientation_deg", "ellipse_confidence"} & set(o) and a not in o:
             return a, "is missing: the ellipse needs its semi-axes"

@@ -108,6 +108,9 @@ class Passage:
         self.fix_entries = [e for e in entries if e.kind == "fix"]
         self.sight_entries = [e for e in entries if e.kind == "sight"]
         self.note_entries = [e for e in entries if e.kind == "note"]
+        self.current_entries = sorted((e for e in entries if e.kind == "current"),
+                                      key=lambda e: _utc(e))
+        self.watch_checks = [e for e in entries if e.kind == "watch_check"]
         self._settings_before: dict[str, Settings] = {}
         running = dict(DEFAULTS)
         changes: list[tuple] = []      # (utc, course or None, speed or None, id) of dr entries
@@ -173,6 +176,45 @@ class Passage:
         leg = self.leg_at(utc)
         return Whereabouts(utc, lat, lon, a.basis, a,
                            leg.course_deg if leg else None, leg.speed_kn if leg else 0.0)
+
+    def currents(self):
+        """(from_utc, Current) in time order: the currents entered or applied (issue 10)."""
+        from .current import Current
+
+        return [(_utc(e), Current(e["set_deg"], e["drift_kn"])) for e in self.current_entries]
+
+    def currents_in_force(self, t_from: datetime, t_to: datetime):
+        """The currents that act between two instants: the one in force at `t_from` and those
+        that begin before `t_to` (an empty list when none has any drift)."""
+        cur = self.currents()
+        before = [c for c in cur if c[0] <= t_from]
+        out = ([before[-1]] if before else []) + [c for c in cur if t_from < c[0] < t_to]
+        return out if any(c.drift_kn > 0 for _, c in out) else []
+
+    def ep(self, utc: datetime) -> tuple[float, float] | None:
+        """The EP at `utc`: the DR with every current in force since its anchor allowed for;
+        None when no current is in force since then."""
+        from .current import ep_from_dr
+
+        w = self.where(utc)
+        in_force = self.currents_in_force(w.anchor.utc, utc)
+        if not in_force:
+            return None
+        return ep_from_dr(w.lat_deg, w.lon_deg, in_force, w.anchor.utc, utc)
+
+    def run_ep(self, t_from: datetime, t_to: datetime, lat: float, lon: float):
+        """As :meth:`run`, along the EP track: the legs sailed and the currents in force."""
+        from .current import ep_from_dr
+
+        if t_to == t_from:
+            return None, 0.0
+        a, b = (t_from, t_to) if t_to > t_from else (t_to, t_from)
+        lat2, lon2 = self._sail(lat, lon, a, b)
+        lat2, lon2 = ep_from_dr(lat2, lon2, self.currents_in_force(a, b), a, b)
+        course, dist = rhumb_line(lat, lon, lat2, lon2)
+        if float(dist) < 1e-9:
+            return None, 0.0
+        return float(course), float(dist) / ((b - a).total_seconds() / 3600.0)
 
     def run(self, t_from: datetime, t_to: datetime, lat: float, lon: float) -> tuple[float | None, float]:
         """Course and speed made good from t_from to t_to along the legs (no anchor resets)."""
@@ -254,7 +296,9 @@ class Passage:
         chosen.sort(key=lambda pair: pair[1].utc)
         rows = [r for _, r in chosen]
         last = rows[-1]
-        runs = [self.run(r.utc, last.utc, r.dr_lat_deg, r.dr_lon_deg) for r in rows]
+        along_ep = bool(self.currents_in_force(rows[0].utc, last.utc))
+        run = self.run_ep if along_ep else self.run      # issue 10: along the EP track
+        runs = [run(r.utc, last.utc, r.dr_lat_deg, r.dr_lon_deg) for r in rows]
         result = fix_from_rows(rows, confidence=confidence, runs=runs,
                                keep_doubtful=keep_doubtful, names=[e.id for e, _ in chosen])
         return result, [chosen[i][0] for i in result.used]

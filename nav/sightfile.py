@@ -258,6 +258,18 @@ def _sight_time(row_no: int, cells: dict[str, str], values: dict, errors: list) 
     has_utc = bool((cells.get("utc") or "").strip())
     if any(e.field in ("utc",) + WATCH_TIME_FIELDS for e in errors):
         return
+    rated = [w for w in ("watch_rate_s_per_day", "watch_error_date") if (cells.get(w) or "").strip()]
+    if len(rated) == 1:                   # issue 10: the rate and its date go together
+        other = ({"watch_rate_s_per_day", "watch_error_date"} - set(rated)).pop()
+        errors.append(NavInputError(f"{rated[0]} needs {other} beside it", field=other,
+                                    row=row_no, example=SIGHT_FIELD_BY_NAME[other].example))
+        return
+    if rated and has_utc:
+        errors.append(NavInputError("a watch rate applies to a time read on the watch (date, "
+                                    "watch_time, watch_error, zone), not to utc",
+                                    field="watch_rate_s_per_day", row=row_no,
+                                    example="leave watch_rate_s_per_day empty on a utc row"))
+        return
     if has_utc and given:
         errors.append(NavInputError("give the time as utc or as date, watch_time, watch_error and "
                                     "zone, not both", field="utc", row=row_no,
@@ -272,6 +284,14 @@ def _sight_time(row_no: int, cells: dict[str, str], values: dict, errors: list) 
         zt = datetime.combine(values["date"], datetime.min.time()) + values["watch_time"]
         utc = (zt - timedelta(seconds=values["watch_error"]) +
                timedelta(hours=values["zone"])).replace(tzinfo=UTC)
+        if rated:   # issue 10: error = watch_error + rate × (sight − watch_error_date) in days
+            from .watch import error_with_rate
+
+            values["watch_error"] = error_with_rate(values["watch_error"],
+                                                    values["watch_rate_s_per_day"],
+                                                    values["watch_error_date"], utc)
+            utc = (zt - timedelta(seconds=values["watch_error"]) +
+                   timedelta(hours=values["zone"])).replace(tzinfo=UTC)
         try:
             check_range(to_datetime64(utc), "date")
         except NavInputError as err:

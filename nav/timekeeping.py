@@ -349,3 +349,19 @@ def from_datetime64(t64) -> datetime:
     """One ``datetime64`` (UTC) -> aware datetime."""
     us = np.datetime64(t64, "us").astype(np.int64)
     return datetime(1970, 1, 1, tzinfo=UTC) + timedelta(microseconds=int(us))
+
+
+_ISO_DATE = re.compile(r"^\d{4}-\d{2}-\d{2}$")
+
+
+def parse_date_or_utc(text: str, field: str = "watch_error_date") -> datetime:
+    """An ISO date (taken as 00:00 UTC that day) or an ISO 8601 instant with its zone: when a
+    watch error was measured (issue 10's ``watch_error_date``)."""
+    s = str(text).strip()
+    if _ISO_DATE.match(s):
+        try:
+            return datetime.strptime(s, "%Y-%m-%d").replace(tzinfo=UTC)
+        except ValueError:
+            raise NavInputError(f"'{text}' is not a real date", field=field,
+                                example="2026-06-01 or 2026-06-01T12:00:00Z") from None
+    return parse_utc(s, field)

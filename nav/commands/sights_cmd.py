@@ -41,6 +41,12 @@ def register(sub) -> None:
                    help="let --plot replace an existing file (without it, an existing file is "
                         "refused)")
     f.add_argument("--skip-bad-rows", action="store_true", help=SKIP_HELP)
+    f.add_argument("--bias", action="store_true",
+                   help="also estimate one altitude error shared by all sights (index error, "
+                        "height of eye, abnormal dip or refraction); needs bodies all round")
+    f.add_argument("--average-runs", action="store_true",
+                   help="replace each run of 3+ sights of one body within 15 min by its averaged "
+                        "sight (a flagged shot left out), as `nav series` shows")
     f.add_argument("--use-doubtful", action="store_true",
                    help="also use sights that their DR cannot explain (left out by default; "
                         "each is named with the reason and any slip that explains it)")
@@ -150,8 +156,8 @@ def run_reduce(args) -> int:
 
 
 def run_fix(args) -> int:
-    from ..render import fix_dict, fix_lines, reduction_dict
-    from ..workflow import fix_from_rows
+    from ..fixchain import chain_fixes
+    from ..plausibility import DoubtfulSightsError
 
     if not (0.0 < args.confidence < 1.0):
         raise NavInputError("--confidence must be between 0 and 1", field="confidence",
@@ -167,23 +173,67 @@ def run_fix(args) -> int:
     if len(rows) < 2:
         raise NavInputError("a fix needs at least two sights", field="file",
                             example="two or more rows of sights")
-    from ..plausibility import DoubtfulSightsError
+    runs = ()
+    if getattr(args, "average_runs", False):
+        from ..series import check_runs, rows_with_runs_averaged
 
+        runs = check_runs(rows, red)
+        rows, red = rows_with_runs_averaged(rows, runs), None
     try:
-        result = fix_from_rows(rows, confidence=args.confidence, reductions=red,
-                               keep_doubtful=args.use_doubtful)
+        chain = chain_fixes(rows, confidence=args.confidence, reductions=red,
+                            keep_doubtful=args.use_doubtful)
     except DoubtfulSightsError as err:
         for note in err.notes:
             print(f"nav fix: {printable(args.file)}: {note}", file=sys.stderr)
         raise _Reported(err.reason + "; --use-doubtful computes the fix with them",
                         field=err.field) from None
-    fix = result.fix
-    if args.plot:
+    if runs and not args.json:
+        for r in runs:
+            left = [s.row for s in r.shots if s.flagged]
+            print(f"run of {len(r.shots)} sights of {r.body} (rows {r.shots[0].row}\u2013"
+                  f"{r.shots[-1].row}) replaced by its averaged sight"
+                  + (f"; left out row(s) {', '.join(map(str, left))}" if left else ""))
+        print()
+    shown = [_one_fix(args, c, len(chain)) for c in chain]
+    if args.json:
+        doc = dict(shown[-1])
+        if len(chain) > 1:
+            doc["fixes"] = [d["fix"] for d in shown]
+            doc["sights"] = [s for d in shown for s in d["sights"]]
+        if runs:
+            from ..render_checks import series_dict
+
+            doc["runs"] = [series_dict(r) for r in runs]
+        doc["caution"] = CAUTION
+        json.dump(doc, sys.stdout, indent=1, ensure_ascii=False)
+        sys.stdout.write("\n")
+        return 0
+    print(CAUTION)
+    return 0
+
+
+def _one_fix(args, c, n_fixes: int) -> dict:
+    """Plot, print or build the JSON of one fix of the file (`c`: a ChainFix)."""
+    from ..render import fix_dict, fix_lines, reduction_dict
+    from ..render_checks import chain_keys, chain_lines
+
+    result = c.result
+    fix, lops, bias = result.fix, result.lops, None
+    title = f"{fix.kind.capitalize()} from {args.file}" + (f" ({c.label})" if c.label else "")
+    if getattr(args, "bias", False):
+        from .fix_extras import with_bias
+
+        fix, lops, title, bias = with_bias(result, args.confidence, title)
+    plot = args.plot
+    if plot and n_fixes > 1:
+        stem, dot, ext = plot.rpartition(".")
+        plot = f"{stem}-{c.label}.{ext}" if dot else f"{plot}-{c.label}"
+    if plot:
         from ..plotting import plot_fix_sheet
 
-        plot_fix_sheet(fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
-                       title=f"{fix.kind.capitalize()} from {args.file}", path=args.plot,
-                       replace=args.replace)
+        plot_fix_sheet(fix, lops, dr=(result.dr_lat_deg, result.dr_lon_deg), title=title,
+                       path=plot, replace=args.replace,
+                       **({"known": c.ep, "known_label": "EP (DR + current)"} if c.ep else {}))
     if args.json:
         sights = []
         doubts = {d.index: d for d in result.doubts}
@@ -195,22 +245,34 @@ def run_fix(args) -> int:
             d["advanced_nmi"] = round(result.lops[i].advanced_nmi, 4)
             k = result.used[i]
             d["doubtful"] = doubts[k].as_dict() if k in doubts else None
+            if c.label:
+                d["fix"] = c.label
             sights.append(d)
         left_out = []
         for k in sorted(set(doubts) - set(result.used)):
-            row = rows[k]
+            row = c.rows[k]
             left_out.append({"row": row.row, "line": row.line, "body": row.body,
                              "utc": f"{row.utc:%Y-%m-%dT%H:%M:%S}Z", **doubts[k].as_dict()})
-        doc = {"fix": {**fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
-                       "left_out": left_out},
-               "sights": sights, "caution": CAUTION}
-        json.dump(doc, sys.stdout, indent=1, ensure_ascii=False)
-        sys.stdout.write("\n")
-        return 0
+        fd = {**fix_dict(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg),
+              "left_out": left_out}
+        fd.update(chain_keys(c))
+        if bias is not None:
+            from .fix_extras import bias_keys
+
+            fd.update(bias_keys(bias))
+        return {"fix": fd, "sights": sights}
+    if c.label:
+        print(f"[{c.label}]")
     for line in fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg):
         print(line)
-    if args.plot:
-        print(f"  plotting sheet written to {args.plot}")
+    for line in chain_lines(c):
+        print(line)
+    if bias is not None:
+        from ..render_checks import bias_lines
+
+        for line in bias_lines(bias):
+            print(line)
+    if plot:
+        print(f"  plotting sheet written to {plot}")
     print()
-    print(CAUTION)
-    return 0
+    return {}

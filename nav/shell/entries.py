@@ -208,6 +208,10 @@ def summary(e) -> str:
         return f"corrects {d['target']}: {d['reason']}"
     if e.kind == "repair":
         return f"torn line {d['torn_line']} set aside in {d['side_file']}"
+    if e.kind in ("current", "watch_check"):        # issue 10
+        from .checks_cmds import entry_text
+
+        return entry_text(e.kind, d)
     return ""
 
 

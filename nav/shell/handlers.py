@@ -167,6 +167,9 @@ def run_sight(st, req) -> None:
         return
     show_reduction(st, e)
     say_doubt(st, e)
+    from .checks_cmds import after_sight
+
+    after_sight(st, e)          # issue 10: the run this sight completes, checked
 
 
 def say_doubt(st, e) -> None:
@@ -292,7 +295,9 @@ def run_fix(st, req) -> None:
 
     ids = req.args["ids"] or _default_sights(st, req.args.get("from"))
     from ..plausibility import DoubtfulSightsError
+    from .checks_cmds import after_fix, fix_ids_with_averages
 
+    ids = fix_ids_with_averages(st, ids)   # issue 10: an averaged sight, only when agreed
     try:
         result, entries = st.passage.fix_from(ids,
                                               keep_doubtful=req.args.get("keep_doubtful", False))
@@ -301,9 +306,27 @@ def run_fix(st, req) -> None:
         raise NavInputError(err.reason + "; `fix ... use-doubtful` computes it with them",
                             field=err.field, example="fix e0004 e0005 use-doubtful") from None
     fix = result.fix
-    lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg)
-    e = st.append(fix_entry(fix, [x.id for x in entries]))
+    bias_lines = []
+    if req.args.get("bias"):                    # issue 10: with one shared altitude error
+        from ..commands.fix_extras import with_bias
+        from ..render_checks import bias_lines as _bias_lines
+
+        fix, _, _, bf = with_bias(result, 0.95, "")
+        bias_lines = _bias_lines(bf)
+    lines = fix_lines(fix, dr_lat_deg=result.dr_lat_deg, dr_lon_deg=result.dr_lon_deg) + bias_lines
+    from .checks_cmds import set_drift_since_last_fix
+
+    entry = fix_entry(fix, [x.id for x in entries])
+    sd = set_drift_since_last_fix(st.passage, fix)     # issue 10: the current since the last fix
+    if sd is not None:
+        entry["set_drift"] = {"set_deg": round(sd.set_deg, 2) % 360.0,
+                              "drift_kn": round(sd.drift_kn, 3), "since_utc": sd.since_utc}
+    e = st.append(entry)
     st.say(*lines)
+    first = min(parse_utc(x["utc"]) for x in entries)
+    if fix.kind == "running fix" and st.passage.currents_in_force(first, fix.utc):
+        st.say("  the earlier lines were advanced along the EP track (the current in force)")
+    after_fix(st, sd)
     st.say(f"logged {e.id}: {fix.kind} from {' '.join(x.id for x in entries)}",
            *textwrap.wrap(CAUTION, 78))
 
@@ -354,6 +377,9 @@ def run_where(st, req) -> None:
            f"  position     {format_lat(w.lat_deg)}  {format_lon(w.lon_deg)}",
            f"  basis        {w.describe()}" + (f" (anchor {w.anchor.entry_id})"),
            *(x for line in stale_anchor(st, w) for x in st.wrap(line, "    ")))
+    from .checks_cmds import where_lines
+
+    st.say(*where_lines(st, req.time.utc))
     if w.course_deg is not None and w.speed_kn:
         st.say(f"  course       {w.course_deg:05.1f}°, speed {w.speed_kn:g} kn")
     if hours > 12:

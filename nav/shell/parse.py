@@ -144,16 +144,18 @@ USE_DOUBTFUL = "use-doubtful"
 
 def parse_fix(args, line, ctx) -> Request:
     keep = [a for a in args if a.text.lower() == USE_DOUBTFUL and not a.quoted]
-    args = [a for a in args if a not in keep]
+    bias = [a for a in args if a.text.lower() == "bias" and not a.quoted]   # issue 10
+    args = [a for a in args if a not in keep and a not in bias]
     if args and args[0].text.lower() == "from" and not args[0].quoted:
-        rest = " ".join(w for w in line[args[0].end:].split() if w.lower() != USE_DOUBTFUL)
+        rest = " ".join(w for w in line[args[0].end:].split() if w.lower() not in (USE_DOUBTFUL, "bias"))
         if not rest:
             raise NavInputError("give the time of the first sight to take", field="from",
                                 example="fix from 08:30, or fix from zt 06:30")
         words = rest.split(None, 1)
         start = (parse_zt(words[1], ctx, "from") if words[0].lower() == "zt" and len(words) == 2
                  else parse_at(rest, ctx, "from"))
-        return Request("fix", args={"ids": [], "from": start, "keep_doubtful": bool(keep)})
+        return Request("fix", args={"ids": [], "from": start, "keep_doubtful": bool(keep),
+                                          "bias": bool(bias)})
     ids = [_entry_id(a.text, ctx, "sights", kinds=("sight",)) for a in args]
     twice = sorted({i for i in ids if ids.count(i) > 1})
     if twice:
@@ -164,7 +166,7 @@ def parse_fix(args, line, ctx) -> Request:
         if ctx.lookup(sid) is None:
             raise NavInputError(f"{sid} is struck; it cannot go into a fix", field="sights",
                                 example="the ids of sights that stand")
-    return Request("fix", args={"ids": ids, "keep_doubtful": bool(keep)})
+    return Request("fix", args={"ids": ids, "keep_doubtful": bool(keep), "bias": bool(bias)})
 
 
 def parse_where(args, line, ctx) -> Request:

@@ -182,7 +182,8 @@ def run_plot(st, req) -> None:
         if fx is None:
             raise NavInputError(f"{fid} is struck", field="id", example="plot fix e0009")
         try:
-            result, _ = passage_before(st.passage, fid).fix_from(list(fx["sight_ids"]))
+            before = passage_before(st.passage, fid)
+            result, _ = before.fix_from(list(fx["sight_ids"]))
         except NavInputError as err:
             raise NavInputError(f"fix {fid} cannot be drawn again: {err.reason}", field="id",
                                 example=f"strike {fid} REASON, then fix") from None
@@ -190,10 +191,15 @@ def run_plot(st, req) -> None:
         from ..plotting import plot_fix_sheet
 
         kind = result.fix.kind
+        try:
+            ep = before.ep(result.fix.utc)        # issue 10: the EP beside the DR
+        except NavInputError:
+            ep = None
         plot_fix_sheet(result.fix, result.lops, dr=(result.dr_lat_deg, result.dr_lon_deg),
                        title=f"{st.vessel}: {kind} {result.fix.utc:%Y-%m-%d %H:%M} UTC ({fid})",
                        path=out, replace=req.args.get("replace", False),
-                       replace_hint=SHELL_REPLACE_HINT)
+                       replace_hint=SHELL_REPLACE_HINT,
+                       **({"known": ep, "known_label": "EP (DR + current)"} if ep else {}))
         _, moved = rhumb_line(fx["lat_deg"], fx["lon_deg"], result.fix.lat_deg,
                               result.fix.lon_deg)
         if float(moved) > 0.05:
@@ -211,9 +217,14 @@ def run_plot(st, req) -> None:
                             "enter a DR, or take sights and run fix", field="plot",
                             example="dr 41 12.5 N 032 07.1 W course 245 speed 6.5 at 18:00")
     out = Path(path) if path else _next_to_log(st, "-passage.png")
+    from .checks_cmds import ep_track
+
+    ep = ep_track(st.passage, track)          # issue 10: the EP track beside the DR's
     plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out,
-                 replace=req.args.get("replace", False), replace_hint=SHELL_REPLACE_HINT)
-    st.say(f"passage plot written to {out}")
+                 replace=req.args.get("replace", False), replace_hint=SHELL_REPLACE_HINT,
+                 **({"reference_track": ep, "reference_label": "EP track (DR + current)"}
+                    if ep else {}))
+    st.say(f"passage plot written to {out}" + (", with the EP track" if ep else ""))
 
 
 SHELL_REPLACE_HINT = "the word replace at the end"

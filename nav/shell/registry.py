@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 from ..errors import NavInputError
-from . import handlers, meridian_cmds, records, sky_cmds, triangle_cmd
+from . import checks_cmds, handlers, meridian_cmds, records, sky_cmds, triangle_cmd
 from .parse import (Request, parse_almanac, parse_correct, parse_course, parse_dr, parse_export,
                     parse_fix, parse_import, parse_latitude, parse_log, parse_longitude,
                     parse_name, parse_noon, parse_note, parse_plain, parse_plot, parse_set,
@@ -74,7 +74,7 @@ COMMANDS_LIST = (
              "the reduction is worked from the DR at the sight's time"),
             ("sight Vega 34 12.3 at 22:55:00", "sight Sun 52 08.4 limb upper zt 11:42:05",
              "sight Rigil Kentaurus 18 44.0 at 2026-06-14T22:58:30Z note low, hazy")),
-    Command("fix", "fix [SIGHT-ID ... | from TIME] [use-doubtful]",
+    Command("fix", "fix [SIGHT-ID ... | from TIME] [use-doubtful] [bias]",
             "fix or running fix: the latest group of sights, the sights named, or those from a "
             "time on",
             parse_fix, handlers.run_fix, (), "sight",
@@ -87,7 +87,8 @@ COMMANDS_LIST = (
              "the fix is logged with its sights, error ellipse and warnings",
              "a sight its DR cannot explain (50 nmi + 2 kn for each hour since the DR was set) "
              "is left out and named with the likely slip; use-doubtful keeps it in"),
-            ("fix", "fix e0004 e0005 e0007", "fix from 08:30", "fix e0004 e0005 use-doubtful")),
+            ("fix", "fix e0004 e0005 e0007", "fix from 08:30", "fix e0004 e0005 use-doubtful",
+              "fix bias")),
     Command("where", f"where [{TIME}]", "where the vessel is, and on what basis",
             parse_where, handlers.run_where, ("at", "zt"), None,
             (f"without a time: now, while the latest entry is at most {LIVE_HOURS} h old; else "
@@ -125,6 +126,30 @@ COMMANDS_LIST = (
              "the timing is the weak point: 1 min of time is 15′ of longitude",
              "log: append the longitude as a note (a line of position, not a fix)"),
             ("longitude at 13:41:36", "longitude zt 11:41:48 log")),
+    Command("current", f"current [SET DRIFT [{TIME}] [note TEXT] | apply]",
+            "a current from a time on (EP = DR + current); `current` alone shows DR and EP",
+            checks_cmds.parse_current, checks_cmds.run_current, ("at", "zt", "note"), None,
+            ("SET: degrees true, the direction the water flows toward; DRIFT: knots",
+             "in force from its time on, like a course change; `current 0 0` ends it",
+             "apply: the set and drift between the last two fixes, from the latest fix on",
+             "running fixes then advance the earlier lines along the EP track, and say so"),
+            ("current 210 0.8 at 18:00", "current apply", "current")),
+    Command("average", "average [SIGHT-ID ...]",
+            "log the averaged sight of a run (3+ shots of one body in 15 min)",
+            checks_cmds.parse_average, checks_cmds.run_average, (), "sight",
+            ("each shot is compared with the altitude change predicted at the DR; a shot "
+             "departing from the rest is flagged and left out of the average",
+             "the averaged sight is a new entry naming its sources; nothing is rewritten",
+             "a fix from the run's sights asks before it uses the average in their place"),
+            ("average", "average e0004 e0005 e0006")),
+    Command("watch", "watch [READING at TIME [by signal|gps|reference] [note TEXT]]",
+            "log a comparison of the watch with a reference; `watch` alone: error and rate",
+            checks_cmds.parse_watch, checks_cmds.run_watch, ("at", "by", "note"), None,
+            ("READING: the watch's face (zone time, as `zt` reads it) at the reference instant",
+             "the daily rate is fitted by least squares from two or more comparisons; sights "
+             "timed `zt ...` then take error + rate × days, and say so",
+             "a rate that changes suddenly between comparisons is warned of"),
+            ("watch 12:00:04 at 12:00:00 by signal", "watch")),
     Command("sky", "sky [DATE]",
             "twilight, sunrise and sunset, moonrise and moonset, meridian passages, along the DR",
             sky_cmds.parse_sky, sky_cmds.run_sky, (), None,

@@ -216,6 +216,9 @@ def status_line(st: ShellState | None) -> str:
         s = st.settings
         try:
             parts.append(position_brief(st.passage.where(now)))
+            ep = st.passage.ep(now)             # issue 10: the EP beside the DR
+            if ep is not None:
+                parts.append(f"EP {format_lat(ep[0])} {format_lon(ep[1])}")
         except NavError:   # nothing before now, or a DR that cannot be carried so far
             a = st.passage.anchors[-1] if st.passage.anchors else None
             parts.append("no DR yet" if a is None else

@@ -128,15 +128,30 @@ def parse_zt(text: str, ctx, fld: str = "zt", *, sight: bool = False) -> TimeRea
     else:
         reading = parse_naive_time(text, fld)
     wt = zone_time_to_utc(reading, timedelta(hours=zd_h), timedelta(seconds=fast_s))
+    rated = _rated_error(ctx, wt.utc)         # issue 10: the watch's rate, when one is logged
+    if rated is not None:
+        fast_s = round(rated[0], 2)
+        wt = zone_time_to_utc(reading, timedelta(hours=zd_h), timedelta(seconds=fast_s))
     if sight:
         parse_sight_utc(wt.utc.strftime("%Y-%m-%dT%H:%M:%S.%fZ"), fld)  # inside the ephemeris
     watch = ("watch error none" if not fast_s else
              f"watch {abs(fast_s):g} s {'fast, subtracted' if fast_s > 0 else 'slow, added'}")
+    if rated is not None:
+        watch += f" ({rated[1]})"
     zt = round_to_second(wt.zone_time)
     explain = (f"watch {reading:%Y-%m-%d %H:%M:%S}{why}, {watch}: ZT {zt:%H:%M:%S}; "
                f"ZD {zone_text(zd_h)}, UTC = ZT + ZD = {format_date_hms(wt.utc)}")
     return TimeRead(wt.utc, "watch", f"{reading:%Y-%m-%d %H:%M:%S}", explain,
                     zone_description_h=zd_h, watch_error_s=fast_s, watch_reading=reading)
+
+
+def _rated_error(ctx, utc_guess):
+    try:
+        from .checks_cmds import watch_error_now
+
+        return watch_error_now(ctx, utc_guess)
+    except AttributeError:          # a context without a passage (a check of the line only)
+        return None
 
 
 def parse_time_options(options: Mapping[str, str], ctx, *, sight: bool = False,
