@@ -31,11 +31,15 @@ def make_entry(seq: int) -> dict:
     """A deterministic entry for a sequence number (the test recomputes it to compare)."""
     kind = ("sight", "sight", "dr", "note", "setting")[seq % 5]
     minute = f"{seq % 60:02d}"
+    # Every sight unique in body, UTC and Hs for 17,280 entries (the log refuses a repeated
+    # sight): the second and the hour of the sight also step with the sequence number.
+    sec, hour = (seq // 60) % 48, 15 + (seq // 2880) % 6
     if kind == "sight":
         deg = 10 + seq % 70
         return {"kind": "sight", "body": BODIES[seq % len(BODIES)],
-                "utc": f"2026-03-20T18:{minute}:10Z", "time_source": "watch",
-                "time_text": f"2026-03-20 15:{minute}:22", "zone_description": "+3",
+                "utc": f"2026-03-20T{hour + 3:02d}:{minute}:{sec:02d}Z", "time_source": "watch",
+                "time_text": f"2026-03-20 {hour:02d}:{minute}:{sec + 12:02d}",
+                "zone_description": "+3",
                 "zone_description_h": 3, "watch_error": "12 fast", "watch_error_s": 12.0,
                 "hs": f"{deg} {seq % 60}.4", "hs_deg": deg + (seq % 60 + 0.4) / 60,
                 "limb": "lower", "note": f"crash test entry {seq} " + "x" * (seq % 40)}
