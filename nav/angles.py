@@ -182,6 +182,12 @@ def parse_angle(text: str, field: str = "angle", *, min_deg: float = 0.0, max_de
     return deg
 
 
+def parse_bearing(text: str, field: str = "bearing") -> float:
+    """A bearing, heading or Zn: degrees 0 to 360, returned in [0, 360)."""
+    return float(norm360(parse_angle(text, field, min_deg=0.0, max_deg=360.0,
+                                     example="058, 058.5 or 245")))
+
+
 def parse_altitude(text: str, field: str = "hs", *, max_deg: float = 90.0) -> float:
     """A sextant altitude, −1° to 90° (a back sight is refused here). An artificial horizon's
     reading is the double altitude: its parser (:mod:`nav.fields`) passes ``max_deg=180``."""

@@ -140,8 +140,9 @@ def compass_check(body: str, utc: datetime, lat_deg: float, lon_deg: float,
                      visible_correction_deg=float(norm180(zn - zn0)) if horizon == "visible"
                      else None)
         if abs(alt - h) > AMPLITUDE_MAX_ALT_DEG:
-            notes.append(f"from the DR {name} stands {alt:.1f}° high at this time, not on the "
-                         "horizon: check the time, or use the azimuth method")
+            where = f"{alt:.1f}° above" if alt >= 0 else f"{-alt:.1f}° below"
+            notes.append(f"from the DR {name} stands {where} the horizon at this time, not on "
+                         "it: check the time, or use the azimuth method")
         if abs(lat_deg) > HIGH_LAT_WARN_DEG:
             notes.append("in high latitudes the body crosses the horizon at a shallow angle and "
                          "the amplitude is sensitive to the altitude: prefer the azimuth method")

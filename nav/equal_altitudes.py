@@ -97,13 +97,13 @@ def equal_altitudes(t1: datetime, t2: datetime, lat_deg: float, lon_deg: float, 
     from .sailing import advance_position
 
     if t2 <= t1:
-        raise NavInputError("the second sight must come after the first", field="t2",
+        raise NavInputError("the second sight must come after the first", field="second",
                             example="--first 2026-06-21T11:20:00Z --second "
                                     "2026-06-21T17:00:00Z")
     hours = (t2 - t1).total_seconds() / 3600.0
     if hours > MAX_INTERVAL_H:
         raise NavInputError(f"{hours:.1f} h between the sights: they belong to one noon, "
-                            f"at most {MAX_INTERVAL_H:g} h apart", field="t2",
+                            f"at most {MAX_INTERVAL_H:g} h apart", field="second",
                             example="sights 2 to 6 hours apart")
     if abs(lat_deg) > POLAR_LIMIT_DEG:
         raise NavInputError(f"within {90 - POLAR_LIMIT_DEG:g}° of a pole the Sun's altitude "

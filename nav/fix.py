@@ -58,6 +58,10 @@ from .timekeeping import UTC, format_hms
 from .units import NMI_PER_DEG
 
 RUNNING_FIX_MIN = 30.0          # sights advanced across more than this make a running fix
+# A running fix is commonly run over a few hours (Sun-run-Sun, about 3 h); past this many hours
+# of advance the DR's unknown current and leeway outgrow the ellipse, and the fix says so
+# (common practice, no source).
+LONG_RUN_H = 8.0
 MAX_FIX_SIGHTS = 200_000        # one fix takes at most this many sights (memory grows linearly)
 
 
@@ -444,6 +448,11 @@ def solve_fix(sights, dr_lat_deg: float, dr_lon_deg: float, fix_utc: datetime | 
             else "fix")
     warnings = _warnings(sights, n, ho, r, norm_res, flags, uncheckable, cut, vf, scale,
                          converged, iterations, tol_nmi)
+    run_h = float(np.max(np.abs(dt_h[moving]))) if moving.any() else 0.0
+    if run_h > LONG_RUN_H:
+        warnings.append(f"running fix over {run_h:.0f} h: sights were advanced that long along "
+                        "the DR, whose unknown current and leeway are errors the ellipse cannot "
+                        "show")
     ellipse = ErrorEllipse(semi_major_nmi=float(res.semi_major_nmi[0]),
                            semi_minor_nmi=float(res.semi_minor_nmi[0]),
                            orientation_deg=float(res.orientation_deg[0]),

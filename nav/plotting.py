@@ -65,9 +65,9 @@ def _check_path(path, replace: bool = False, replace_hint: str | None = None):
     p = Path(path)
     if p.suffix.lower().lstrip(".") not in SAVE_FORMATS:
         raise NavInputError(f"'{p.name}': a plot is saved as PNG or PDF, chosen by the extension",
-                            field="path", example="sheet.png or sheet.pdf")
+                            field="plot", example="sheet.png or sheet.pdf")
     hint = replace_hint or REPLACE_OPTION
-    check_output(p, replace=replace, field="path", example="sheet.png", replace_hint=hint)
+    check_output(p, replace=replace, field="plot", example="sheet.png", replace_hint=hint)
     return p, p.suffix.lower().lstrip("."), replace, hint
 
 
@@ -80,7 +80,7 @@ def _save(fig, saved, title: str) -> None:
         meta = {"Title": title, key: CAUTION}
         write_output(p, (lambda f: _write_png(fig, f, meta)) if ext == "png" else
                      (lambda f: fig.savefig(f, format=ext, dpi=DPI, metadata=meta)),
-                     replace=replace, field="path", example="sheet.png", replace_hint=hint)
+                     replace=replace, field="plot", example="sheet.png", replace_hint=hint)
 
 
 def _write_png(fig, path, metadata: dict) -> None:

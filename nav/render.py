@@ -111,7 +111,9 @@ def fix_lines(fix, *, dr_lat_deg=None, dr_lon_deg=None) -> list[str]:
            f", \u03c3 {fix.sigma_source}"]
     if dr_lat_deg is not None:
         course, dist = rhumb_line(dr_lat_deg, dr_lon_deg, fix.lat_deg, fix.lon_deg)
-        out.append(f"  from DR      {float(dist):.1f} nmi {float(course):05.1f}\u00b0 "
+        # Under 0.05 nmi the bearing is noise and would be printed as if it meant something.
+        toward = f" {float(course):05.1f}\u00b0" if float(dist) >= 0.05 else ""
+        out.append(f"  from DR      {float(dist):.1f} nmi{toward} "
                    f"(DR {format_lat(dr_lat_deg)}  {format_lon(dr_lon_deg)})")
         far = [w for w in fix.warnings if w.startswith(FAR_FROM_DR)]
         out += [f"  !! {w}" for w in far]      # prominent: right under the position

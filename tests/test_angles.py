@@ -265,3 +265,16 @@ def test_whole_minute_notation():
     assert format_lat(38.0, 0) == "38\u00b000\u2032 N"
     assert format_lon(-32.5, 0) == "032\u00b030\u2032 W"
     assert format_lat(-12.9999, 0) == "13\u00b000\u2032 S"
+
+
+def test_a_bearing_reads_as_degrees_0_to_360_and_its_error_shows_a_bearing():
+    # A compass bearing, heading or Zn is 000 to 360 degrees, 360 being north (common practice,
+    # no source); the example in the error is a bearing, not a sextant altitude.
+    from nav.angles import parse_bearing
+
+    assert parse_bearing("058") == 58.0
+    assert parse_bearing("360") == 0.0
+    assert parse_bearing("245 30") == 245.5
+    with pytest.raises(NavInputError) as e:
+        parse_bearing("400", "bearing")
+    assert e.value.field == "bearing" and "058" in e.value.example

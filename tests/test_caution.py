@@ -55,3 +55,37 @@ def test_nav_is_never_called_a_study_aid():
         text = path.read_text(encoding="utf-8", errors="replace")
         found += [f"{rel}:{text[:m.start()].count(chr(10)) + 1}" for m in AID.finditer(text)]
     assert found == []
+
+
+def test_the_shell_where_carries_the_caution(tmp_path):
+    """`where` shows a position, so it shows the caution (project safety rule, not the trade)."""
+    from shell_driver import open_state, run_lines
+
+    from datetime import datetime, timezone
+
+    def clock():
+        return datetime(2026, 6, 21, 14, tzinfo=timezone.utc)
+
+    state, log = open_state(tmp_path / "p.jsonl", "Tern (invented)", "caution test", clock)
+    try:
+        out = run_lines(state, "dr 41 12 N 032 06 W course 245 speed 6.5 at "
+                        "2026-06-21T12:00:00Z", "where at 2026-06-21T13:00:00Z")
+    finally:
+        log.close()
+    after = " ".join(out.split("where at", 1)[-1].split())
+    assert "position" in after
+    for phrase in REQUIRED:
+        assert phrase in after, phrase
+
+
+def test_reduce_json_keeps_its_list_and_gives_the_caution_on_stderr(capsys):
+    """The JSON of `nav reduce` is a list (README contract) holding DR positions: the caution
+    goes to stderr (project safety rule)."""
+    import json
+
+    from nav.cli import main
+
+    assert main(["reduce", str(ROOT / "examples" / "evening-stars.csv"), "--json"]) == 0
+    out, err = capsys.readouterr()
+    assert isinstance(json.loads(out), list)
+    assert CAUTION in err

@@ -589,3 +589,17 @@ def test_as_a_process_from_another_directory(tmp_path, star_case):
     proc = _process("reduce", "cells.csv", "--json", cwd=work)
     assert proc.returncode == 2 and proc.stdout == ""
     assert "line 3, field 'hs'" in proc.stderr and "Traceback" not in proc.stderr
+
+
+def test_a_fix_on_its_dr_gives_no_bearing_from_it(capsys):
+    # examples/overnight-two-fixes.csv (invented): the dusk fix falls on its DR (noise-free
+    # sights made at the DR), so a bearing from the DR would be noise printed as fact; the night
+    # fix lies 4 nmi south of its DR and keeps its bearing (common practice, no source).
+    from nav.cli import main
+
+    example = Path(__file__).resolve().parent.parent / "examples" / "overnight-two-fixes.csv"
+    assert main(["fix", str(example)]) == 0
+    lines = [x for x in capsys.readouterr().out.splitlines() if "from DR" in x]
+    assert len(lines) == 2
+    assert re.search(r"from DR\s+0\.0 nmi \(DR ", lines[0])
+    assert re.search(r"from DR\s+4\.\d nmi 1\d\d\.\d° \(DR ", lines[1])

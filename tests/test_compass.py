@@ -120,7 +120,18 @@ def test_amplitude_refused_when_the_body_does_not_set():
 def test_amplitude_warns_when_the_body_is_high():
     c = compass_check("Sun", datetime(2026, 6, 21, 14, tzinfo=UTC), 41.2, -32.1, 180.0,
                       amplitude=True)
-    assert any("not on the horizon" in w for w in c.warnings)
+    assert any("above the horizon at this time, not on it" in w for w in c.warnings)
+
+
+def test_amplitude_warning_says_below_for_a_body_under_the_horizon():
+    # Sunset at 41°12' N 032°06' W on 2026-06-21 is about 21:48 UTC (nav sky, checked against
+    # astropy in test_sky); at 23:30 UTC the Sun is well below the horizon (its centre near
+    # -14°, common practice: an hour and a half after sunset in summer mid-latitudes), so the
+    # warning must say "below", never a negative height "high".
+    c = compass_check("Sun", datetime(2026, 6, 21, 23, 30, tzinfo=UTC), 41.2, -32.1, 300.0,
+                      amplitude=True)
+    note = next(w for w in c.warnings if "the horizon at this time" in w)
+    assert "below the horizon" in note and "-" not in note.split("below")[0]
 
 
 def test_cli_compass_json_contract(capsys):

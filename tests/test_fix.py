@@ -226,6 +226,29 @@ def test_running_fix_one_body_sun_morning_to_noon():
     assert any("only two LOPs" in w for w in f.warnings)
 
 
+def test_a_long_running_fix_says_the_ellipse_cannot_show_the_run():
+    # Sun at 08:00 and 17:00 UTC (9 h of run) against Sun at 13:00 and 17:00 (4 h), west of
+    # the Azores in June: only the long run is warned about (nav.fix.LONG_RUN_H, common practice, no source:
+    # a Sun-run-Sun running fix spans about 3 to 4 h).
+    truth = (38.0, -30.0)
+    course, speed = 250.0, 7.0
+
+    def run(hours):
+        t_fix = datetime(2026, 6, 21, 17, 0, tzinfo=UTC)
+        sights = []
+        for hours_before, body in ((hours, "Sun"), (0.0, "Sun")):
+            t = t_fix - timedelta(hours=hours_before)
+            obs = textbook_mercator(*truth, course, -speed * hours_before)
+            sights += sights_at(*obs, [body], t, course_deg=course, speed_kn=speed)
+        return solve_fix(sights, truth[0] + 0.3, truth[1] - 0.4)
+
+    assert not any("running fix over" in w for w in run(4.0).warnings)
+    long_fix = run(9.0)
+    assert long_fix.kind == "running fix"
+    assert any(w.startswith("running fix over 9 h") and "ellipse cannot show" in w
+               for w in long_fix.warnings)
+
+
 def test_running_fix_mixed_bodies_with_current():
     # Each sight carries its own run to the fix time; a current sets 160° at 1.2 kn.
     t_fix = datetime(2026, 6, 21, 18, 0, tzinfo=UTC)

@@ -281,3 +281,14 @@ def test_typed_text_that_no_longer_reads_is_a_note_not_an_error(path):
     write(path, [json.dumps(o, ensure_ascii=False).encode() for o in ls])
     assert problems(path) == [(2, "hs", "note")]
     PassageLog.open(path).close()                 # a note stops nothing
+
+
+def test_review_shows_a_setting_in_navigator_words_not_stored_key_names(capsys):
+    # The demo log's first setting: eye 2.4 m, IE +1.2' on the arc, watch 6 s fast, ZD +2
+    # (sight_logs/demo-azores-madeira.jsonl, invented). Stored key names are the file's, not
+    # the reader's: they must not reach the screen (project rule).
+    demo = Path(__file__).resolve().parent.parent / "sight_logs" / "demo-azores-madeira.jsonl"
+    assert main(["review", str(demo)]) == 0
+    line = next(x for x in capsys.readouterr().out.splitlines() if " e0003 " in x)
+    assert "eye 2.40 m" in line and "IE +1.2′" in line and "watch 6 s fast" in line
+    assert "_arcmin" not in line and "eye_height_m" not in line

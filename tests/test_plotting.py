@@ -381,16 +381,16 @@ def test_sheet_and_passage_are_written_by_extension(tmp_path, ext, signature):
 
 
 @pytest.mark.parametrize("name", ["sheet.jpg", "sheet", "sheet.png.txt"])
-def test_other_extensions_are_refused_naming_the_path(tmp_path, name):
+def test_other_extensions_are_refused_naming_the_plot(tmp_path, name):
     from nav.plotting import plot_fix_sheet, plot_passage
 
     c = cases()["two LOPs"]
     with pytest.raises(NavInputError) as exc:
         plot_fix_sheet(c["fix"], c["lops"], path=tmp_path / name)
-    assert exc.value.field == "path"
+    assert exc.value.field == "plot"
     with pytest.raises(NavInputError) as exc:
         plot_passage([], [c["fix"]], path=tmp_path / name)
-    assert exc.value.field == "path"
+    assert exc.value.field == "plot"
     assert list(tmp_path.iterdir()) == []
 
 
@@ -402,7 +402,7 @@ def test_bad_inputs_name_their_field(tmp_path):
                           (dict(fix=c["fix"], lops=[]), "lops"),
                           (dict(fix=c["fix"], lops=c["lops"], dr=(95.0, 0.0)), "dr.lat_deg"),
                           (dict(fix=c["fix"], lops=c["lops"],
-                                path=tmp_path / "missing" / "s.png"), "path")]:
+                                path=tmp_path / "missing" / "s.png"), "plot")]:
         with pytest.raises(NavInputError) as exc:
             plot_fix_sheet(**kwargs)
         assert exc.value.field == field

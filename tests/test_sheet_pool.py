@@ -41,5 +41,5 @@ def test_a_plot_that_cannot_be_written_is_refused(tmp_path, workers):
         pool.draw("plot_passage", _track(), [], title="Marram Light (invented)", path=blocked)
         pool.close()
     pool.abandon()
-    assert err.value.field == "path" and "is a folder" in str(err.value)   # nav.files' rule
+    assert err.value.field == "plot" and "is a folder" in str(err.value)   # nav.files' rule
     assert blocked.is_dir()                                                 # left as it was

@@ -738,3 +738,22 @@ def test_without_a_log_the_session_asks_for_a_passage(tmp_path, history):
     assert re.search(r"e0002  note +2026-06-14 23:30:00  one", out)   # the clock of the test
     assert "+note one" in history.read_text(encoding="utf-8")   # the answers are not history
     assert "Biscay crossing" not in history.read_text(encoding="utf-8")
+
+
+def test_help_is_wrapped_to_the_terminal_not_cut_mid_word(state):
+    # In a terminal of 80 columns every help line fits, and no word is split (the terminal
+    # would otherwise cut "each" into "ea" / "ch"): a property of the screen, no source needed.
+    state._width = lambda: 80
+    out = run_lines(state, "help fix")
+    lines = [x for x in out.splitlines() if x]
+    assert lines and all(len(x) < 80 for x in lines)
+    words = " ".join(x.strip() for x in lines).split()
+    assert "each" in words
+
+
+def test_a_time_that_is_neither_iso_nor_a_time_of_day_shows_both_forms(state):
+    # The shell's `at` takes an ISO 8601 instant or a UTC time of day (README, TIME): a bad one
+    # is refused with an example of each, not of ISO 8601 alone.
+    out = run_lines(state, "sight Vega 34 12.3 at 32 12.4")
+    (err,) = [x for x in out.splitlines() if x.startswith("error:")]
+    assert "field 'at'" in err and "21:15:48" in err and "2026-06-20T21:15:48Z" in err

@@ -43,9 +43,9 @@ def register(sub) -> None:
 
 
 def read_bearing(text: str, field: str) -> float:
-    from ..angles import norm360, parse_angle
+    from ..angles import parse_bearing
 
-    return float(norm360(parse_angle(text, field, min_deg=0.0, max_deg=360.0)))
+    return parse_bearing(text, field)
 
 
 def run_compass(args) -> int:
@@ -73,7 +73,7 @@ def run_compass(args) -> int:
     eye = parse_height_m(args.eye_height_m, "eye_height_m")
     c = compass_check(body, utc, lat, lon, bearing, variation_deg=var, heading_deg=heading,
                       amplitude=args.amplitude, horizon=horizon, eye_height_m=eye)
-    return va.emit(args, lambda: compass_dict(c), lambda: compass_lines(c))
+    return va.emit(args, lambda: compass_dict(c), lambda: compass_lines(c), [c.utc])
 
 
 def run_deviations(args) -> int:

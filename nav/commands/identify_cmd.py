@@ -27,7 +27,7 @@ def register(sub) -> None:
 
 
 def run_identify(args) -> int:
-    from ..angles import norm360, parse_angle
+    from ..angles import parse_bearing
     from ..fields import parse_sight_utc
     from ..identify import identify
     from ..render_sky import identify_dict, identify_lines
@@ -36,8 +36,8 @@ def run_identify(args) -> int:
                        "zn": ("--zn", "076")})
     utc = parse_sight_utc(args.utc, "utc")
     hs = va.spec("hs")(args.hs, "hs")
-    zn = float(norm360(parse_angle(args.zn, "zn", min_deg=0.0, max_deg=360.0)))
+    zn = parse_bearing(args.zn, "zn")
     lat, lon = va.read_dr(args)
     eye, ie = va.read_eye_ie(args)
     r = identify(utc, hs, zn, lat, lon, index_error_arcmin=ie, eye_height_m=eye)
-    return va.emit(args, lambda: identify_dict(r), lambda: identify_lines(r))
+    return va.emit(args, lambda: identify_dict(r), lambda: identify_lines(r), [r.utc])

@@ -70,6 +70,14 @@ def summary(e) -> str:
         return f"{k}s {d['target']}: {d['reason'][:60]}"
     if k == "repair":
         return f"{d['torn_bytes']} bytes set aside in {d['side_file']}"
+    if k in ("setting", "compass_check"):
+        from ..shell.entries import summary as shell_summary   # the shell's words for them
+
+        try:
+            text = shell_summary(e)
+            return text if len(text) <= 80 else text[:77].rsplit(", ", 1)[0] + ", ..."
+        except (KeyError, TypeError, ValueError):
+            pass                                # a damaged entry: its fields as stored
     fields = [f"{n} {v}" for n, v in d.items() if n not in ("id", "kind", "logged_utc")]
     return ", ".join(fields)[:80]
 

@@ -11,15 +11,17 @@ The zone is the one set (`set zone`), else the DR longitude's; the date defaults
 from __future__ import annotations
 
 import textwrap
-from datetime import datetime, time, timedelta
+from datetime import datetime, time, timedelta, timezone
 
 from .. import CAUTION
 from ..errors import NavInputError
+from .common import ut1_lines
 from .parse import Request, parse_noon
 
 
-def _caution(st) -> None:
-    st.say(*textwrap.wrap(CAUTION, 78))
+def _caution(st, *instants) -> None:
+    """The UT1 caution for these instants (none while UT1 is measured), then nav's caution."""
+    st.say(*ut1_lines(st, *instants), *textwrap.wrap(CAUTION, 78))
 
 
 def _zone_set(st) -> bool:
@@ -86,7 +88,7 @@ def run_sky(st, req) -> None:
         lines[0] = lines[0].replace("(from the DR longitude)", "(from the DR longitude; "
                                     "`set zone` to give one)")
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']})", *lines)
-    _caution(st)
+    _caution(st, [e.utc for e in s.events], s.moon.utc)
 
 
 def run_meridian(st, req) -> None:
@@ -101,7 +103,7 @@ def run_meridian(st, req) -> None:
                      pressure_hpa=s.pressure_hpa, horizon=s.horizon)
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']}); DR from the log along the legs",
            *transit_lines(t))
-    _caution(st)
+    _caution(st, t.utc, datetime.combine(day, time(12), tzinfo=timezone.utc))
 
 
 # ---------------------------------------------------------------- compass
@@ -152,7 +154,7 @@ def _compass_words(args, line):
 
 def parse_compass(args, line, ctx) -> Request:
     """``compass BODY BEARING heading H [var V] [amplitude [visible]] (at T | zt T) [note T]``."""
-    from ..angles import norm360, parse_angle, parse_east_west
+    from ..angles import parse_bearing, parse_east_west
     from ..fields import parse_body
     from .times import parse_time_options
 
@@ -161,11 +163,11 @@ def parse_compass(args, line, ctx) -> Request:
         raise NavInputError("give the body and its compass bearing", field="compass",
                             example=COMPASS_EXAMPLE)
     body = parse_body(" ".join(t.text for t in pos[:-1]), "body")
-    bearing = float(norm360(parse_angle(pos[-1].text, "bearing", min_deg=0, max_deg=360)))
+    bearing = parse_bearing(pos[-1].text, "bearing")
     if "heading" not in opts:
         raise NavInputError("a compass check needs the ship's head by the same compass",
                             field="heading", example=COMPASS_EXAMPLE)
-    heading = float(norm360(parse_angle(opts["heading"], "heading", min_deg=0, max_deg=360)))
+    heading = parse_bearing(opts["heading"], "heading")
     var = parse_east_west(opts["var"], "var") if "var" in opts else None
     if "visible" in flags and "amplitude" not in flags:
         raise NavInputError("'visible' is for an amplitude", field="visible",
@@ -212,7 +214,7 @@ def run_compass(st, req) -> None:
     e = st.append(entry)
     st.say(f"logged {e.id}: compass check, {t.explain}", f"  DR basis     {w.describe()}",
            *compass_lines(c))
-    _caution(st)
+    _caution(st, c.utc)
 
 
 def parse_deviations(args, line, ctx) -> Request:
@@ -237,7 +239,7 @@ IDENTIFY_EXAMPLE = "identify 51 00.0 076 at 23:30:00"
 
 def parse_identify(args, line, ctx) -> Request:
     """``identify HS ZN (at TIME | zt TIME)``: the last positional word is the bearing."""
-    from ..angles import norm360, parse_angle
+    from ..angles import parse_bearing
     from ..fields import SIGHT_FIELD_BY_NAME
     from .times import parse_time_options
     from .words import split_words
@@ -247,7 +249,7 @@ def parse_identify(args, line, ctx) -> Request:
         raise NavInputError("give the sextant altitude and the true bearing", field="identify",
                             example=IDENTIFY_EXAMPLE)
     hs = SIGHT_FIELD_BY_NAME["hs"].parse(" ".join(t.text for t in pos[:-1]), "hs")
-    zn = float(norm360(parse_angle(pos[-1].text, "zn", min_deg=0.0, max_deg=360.0)))
+    zn = parse_bearing(pos[-1].text, "zn")
     t = parse_time_options(opts, ctx, sight=True, required=True)
     return Request("identify", time=t, args={"hs": hs, "zn": zn})
 
@@ -264,7 +266,7 @@ def run_identify(st, req) -> None:
                  eye_height_m=s.eye_height_m if s.horizon == "sea" else 0.0,
                  temperature_c=s.temperature_c, pressure_hpa=s.pressure_hpa)
     st.say(f"time: {t.explain}", f"DR basis: {w.describe()}", *identify_lines(r))
-    _caution(st)
+    _caution(st, r.utc)
 
 
 # ---------------------------------------------------------------- plan
@@ -306,7 +308,7 @@ def run_plan(st, req) -> None:
              how=f"{req.args['twilight']} twilight: the Sun's centre at −6° true (civil)")
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']}); DR from the log along the legs",
            *plan_lines(p))
-    _caution(st)
+    _caution(st, p.utc)
 
 
 # ---------------------------------------------------------------- equal altitudes
@@ -348,4 +350,4 @@ def run_equal(st, req) -> None:
                 "by equal altitudes of the Sun: a line of position, not a fix")
         e = st.append({"kind": "note", "text": text, "utc": r.middle})
         st.say(f"logged {e.id}: note \"{text}\"")
-    _caution(st)
+    _caution(st, t1.utc, t2.utc)

@@ -97,7 +97,16 @@ def parse_at(text: str, ctx, fld: str = "at", *, sight: bool = False) -> TimeRea
     check = parse_sight_utc if sight else parse_utc
     m = _TIME_OF_DAY.match(text.strip())
     if not m:
-        t = check(text, fld)
+        try:
+            t = check(text, fld)
+        except OutOfRangeError:
+            raise
+        except NavInputError as err:
+            if not err.reason.endswith("is not an ISO 8601 time"):
+                raise
+            # The shell takes a time of day too: the example says so.
+            raise NavInputError(err.reason + ", nor a time of day", field=fld,
+                                example="21:15:48 (UTC), or 2026-06-20T21:15:48Z") from None
         note = "" if text.strip().upper().endswith(("Z", "UTC")) else f" (given as {text})"
         return TimeRead(t, "utc", text, f"UTC {format_date_hms(t)}{note}")
     day, why = _default_date(ctx, hms=_time_of_day(m))
