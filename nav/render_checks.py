@@ -17,14 +17,14 @@ def series_dict(run) -> dict:
     """One run in the JSON contract of ``nav series --json``."""
     return {
         "body": run.body, "limb": run.limb,
-        "sights": [{"row": s.row, "utc": _iso(s.utc), "hs_deg": round(s.hs_deg, 7),
+        "sights": [{"row": s.line if s.line is not None else s.row, "utc": _iso(s.utc), "hs_deg": round(s.hs_deg, 7),
                     "residual_arcmin": round(s.residual_arcmin, 3),
                     "threshold_arcmin": round(s.threshold_arcmin, 3), "flagged": s.flagged}
                    for s in run.shots],
         "offset_arcmin": round(run.offset_arcmin, 3),
         "robust_sigma_arcmin": round(run.robust_sigma_arcmin, 3),
         "averaged": {"utc": _iso(run.averaged_utc), "hs_deg": round(run.averaged_hs_deg, 7),
-                     "from_rows": list(run.used_rows)},
+                     "from_rows": list(run.used_lines)},
     }
 
 
@@ -43,11 +43,12 @@ def series_lines(run, names=None) -> list[str]:
     for s in run.shots:
         mark = f"  << {abs(s.residual_arcmin):.1f}\u2032 {'high' if s.residual_arcmin > 0 else 'low'}" \
                if s.flagged else ""
-        name = names[s.row] if names else f"row {s.row}"
+        name = names[s.row] if names else f"line {s.line if s.line is not None else s.row}"
         out.append(f"    {name:<9}{format_hms(s.utc)}  Hs {format_dm(s.hs_deg, decimals=1):>10}"
                    f"  {round(s.residual_arcmin, 1) + 0.0:+6.1f}\u2032{mark}")
     used = run.used_rows
-    used_names = ", ".join(names[r] for r in used) if names else "rows " + ", ".join(map(str, used))
+    used_names = (", ".join(names[r] for r in used) if names
+                  else "lines " + ", ".join(map(str, run.used_lines)))
     out.append(f"  averaged sight  {format_hms(run.averaged_utc)}  Hs "
                f"{format_dm(run.averaged_hs_deg, decimals=1)}  (from {used_names})")
     return out

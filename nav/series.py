@@ -52,6 +52,8 @@ class Shot:
     residual_arcmin: float
     threshold_arcmin: float
     flagged: bool
+    line: int | None = None
+    """The file's line of the shot, as an editor numbers it (None for shots not from a file)."""
 
 
 @dataclass(frozen=True)
@@ -75,6 +77,11 @@ class SightRun:
     @property
     def used_rows(self) -> tuple[int, ...]:
         return tuple(s.row for s in self.shots if not s.flagged)
+
+    @property
+    def used_lines(self) -> tuple[int, ...]:
+        """The file lines of the shots the averaged sight is made from (rows where no line)."""
+        return tuple(s.line if s.line is not None else s.row for s in self.shots if not s.flagged)
 
 
 def find_runs(rows: Sequence[SightRow], *, window_min: float = WINDOW_MIN,
@@ -157,9 +164,10 @@ def _averaged(rows, specs) -> list[SightRow]:
         probes = [replace(p, hs_deg=p.hs_deg + float(d)) for p, d in zip(probes, step)]
     out = []
     for p, (used, _) in zip(probes, specs):
-        rows_text = ", ".join(str(rows[i].row) for i in used)
+        by_line = all(rows[i].line is not None for i in used)
+        rows_text = ", ".join(str(rows[i].line if by_line else rows[i].row) for i in used)
         out.append(replace(p, hs_text=format_dm(p.hs_deg, decimals=2), dr_given=False,
-                           note=f"average of rows {rows_text}",
+                           note=f"average of {'the shots on lines' if by_line else 'rows'} {rows_text}",
                            cells={**p.cells, "averaged_from": rows_text.replace(" ", "")}))
     return out
 
@@ -190,7 +198,8 @@ def check_runs(rows: Sequence[SightRow], reductions=None, *, window_min: float =
     out = []
     for (g, med, res, sigma, thr, flags, _, _), avg in zip(checked, averaged):
         shots = tuple(Shot(row=rows[i].row, utc=rows[i].utc, hs_deg=rows[i].hs_deg,
-                           residual_arcmin=float(r), threshold_arcmin=float(t), flagged=bool(f))
+                           residual_arcmin=float(r), threshold_arcmin=float(t), flagged=bool(f),
+                           line=rows[i].line)
                       for i, r, t, f in zip(g, res, thr, flags))
         out.append(SightRun(body=rows[g[0]].body, limb=rows[g[0]].limb, indices=tuple(g),
                             shots=shots, offset_arcmin=med, robust_sigma_arcmin=sigma,

@@ -31,11 +31,15 @@ def make_entry(seq: int) -> dict:
     """A deterministic entry for a sequence number (the test recomputes it to compare)."""
     kind = ("sight", "sight", "dr", "note", "setting")[seq % 5]
     minute = f"{seq % 60:02d}"
+    # Every sight unique in body, UTC and Hs for 17,280 entries (the log refuses a repeated
+    # sight): the second and the hour of the sight also step with the sequence number.
+    sec, hour = (seq // 60) % 48, 15 + (seq // 2880) % 6
     if kind == "sight":
         deg = 10 + seq % 70
         return {"kind": "sight", "body": BODIES[seq % len(BODIES)],
-                "utc": f"2026-03-20T18:{minute}:10Z", "time_source": "watch",
-                "time_text": f"2026-03-20 15:{minute}:22", "zone_description": "+3",
+                "utc": f"2026-03-20T{hour + 3:02d}:{minute}:{sec:02d}Z", "time_source": "watch",
+                "time_text": f"2026-03-20 {hour:02d}:{minute}:{sec + 12:02d}",
+                "zone_description": "+3",
                 "zone_description_h": 3, "watch_error": "12 fast", "watch_error_s": 12.0,
                 "hs": f"{deg} {seq % 60}.4", "hs_deg": deg + (seq % 60 + 0.4) / 60,
                 "limb": "lower", "note": f"crash test entry {seq} " + "x" * (seq % 40)}
@@ -48,12 +52,27 @@ def make_entry(seq: int) -> dict:
 
 
 TEAR_CHUNK = 7            # bytes per write when tearing
+HOLD = None               # (n, frac): hold the n-th torn write part way (see run_forked)
+_SAY = None
 
 
 def _torn_write(fd: int, data: bytes) -> None:
-    for i in range(0, len(data), TEAR_CHUNK):
-        os.write(fd, data[i:i + TEAR_CHUNK])
+    global HOLD
+    chunks = [data[i:i + TEAR_CHUNK] for i in range(0, len(data), TEAR_CHUNK)]
+    stop = len(chunks)
+    if HOLD is not None:
+        n, frac = HOLD
+        HOLD = (n - 1, frac) if n > 1 else None
+        if n == 1:   # stop after the first line is whole (an import's batch count is on disk)
+            first = -(-(data.index(b"\n") + 1) // TEAR_CHUNK)
+            stop = min(len(chunks) - 1, first + int(frac * (len(chunks) - first)))
+    for chunk in chunks[:stop]:
+        os.write(fd, chunk)
         time.sleep(0.0005)
+    if stop < len(chunks):
+        _SAY("held")         # part of the write is on disk, the rest never will be
+        while True:
+            time.sleep(1)
 
 
 def append_until_killed(path, seq: int, tear: bool, say, batch: int | None = None) -> None:
@@ -76,10 +95,16 @@ def append_until_killed(path, seq: int, tear: bool, say, batch: int | None = Non
 
 
 def run_forked(path, seq: int, tear: bool, wait_s: float, batch: int | None = None,
-               tear_chunk: int = TEAR_CHUNK) -> list[str]:
+               tear_chunk: int = TEAR_CHUNK, hold: tuple[int, float] | None = None) -> list[str]:
     """Fork a writer (nav is already imported: a kill costs milliseconds, not a start-up), let it
-    append for `wait_s` after it is ready, SIGKILL it; returns the lines it said after "ready"."""
-    global TEAR_CHUNK
+    append for `wait_s` after it is ready, SIGKILL it; returns the lines it said after "ready".
+
+    ``hold=(n, frac)`` (with ``tear``) makes the kill land mid-write whatever the machine's load:
+    the n-th write stops part way (after its first line, then `frac` of the rest), says "held"
+    and waits; the writer is killed as soon as that is read (`wait_s` is not used). Without it,
+    where the kill lands depends on timing, and a loaded machine moves it (a slow fsync or a
+    late wake-up of this process lands most kills between writes, not inside one)."""
+    global TEAR_CHUNK, HOLD, _SAY
     import signal
     import traceback
 
@@ -87,10 +112,10 @@ def run_forked(path, seq: int, tear: bool, wait_s: float, batch: int | None = No
     pid = os.fork()
     if pid == 0:  # pragma: no cover - the child: never returns, leaves without pytest's cleanup
         os.close(r)
-        TEAR_CHUNK = tear_chunk
+        TEAR_CHUNK, HOLD = tear_chunk, hold
+        _SAY = lambda t: os.write(w, (t + "\n").encode())  # noqa: E731
         try:
-            append_until_killed(path, seq, tear, lambda t: os.write(w, (t + "\n").encode()),
-                                batch)
+            append_until_killed(path, seq, tear, _SAY, batch)
         except BaseException:  # noqa: BLE001 - report anything to the parent
             os.write(w, ("error " + traceback.format_exc()).encode())
         os._exit(1)
@@ -100,11 +125,16 @@ def run_forked(path, seq: int, tear: bool, wait_s: float, batch: int | None = No
         if first != b"ready\n":
             os.waitpid(pid, 0)
             raise AssertionError((first + f.read()).decode())
-        time.sleep(wait_s)
+        said = []
+        if hold is None:
+            time.sleep(wait_s)
+        else:
+            while (line := f.readline()) not in (b"held\n", b""):
+                said.append(line)
         os.kill(pid, signal.SIGKILL)
         os.waitpid(pid, 0)
-        rest = f.read().decode()
-    assert "error" not in rest, rest
+        rest = b"".join(said).decode() + f.read().decode()
+    assert "error" not in rest and "held" not in rest, rest
     return rest.split("\n")[:-1]
 
 

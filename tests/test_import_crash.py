@@ -13,7 +13,10 @@ navigator needs it (common practice, no source):
   and logs a ``repair`` that says so; none of its entries is ever counted.
 
 Three runs in four write each import a few bytes at a time (``tear``), standing in for a power
-cut (a SIGKILL cannot split one small write); the others use the real single write.
+cut (a SIGKILL cannot split one small write); the others use the real single write. Where a kill
+lands after a random wait depends on the machine's load (loaded, most land between imports: a
+slow fsync, a late wake-up of the test), so one run in four holds an import part way and is
+killed there: the cut-off path is exercised on any machine, not only an idle one.
 """
 
 from __future__ import annotations
@@ -64,8 +67,11 @@ def test_sigkill_during_imports_leaves_all_or_none(tmp_path):
             confirmed: dict[str, int] = {}    # first id of an import -> its first seq
             seq = 0
         tear = bool(i % 4)
-        for line in crash_writer.run_forked(path, seq, tear, rng.uniform(0.001, 0.02),
-                                            batch=BATCH, tear_chunk=61):
+        wait_s, hold = rng.uniform(0.001, 0.02), (rng.randint(1, 3), rng.random())
+        # One run in four holds its import part way and is killed there (a cut-off import on
+        # any machine); the others are killed after a random wait, wherever that lands.
+        for line in crash_writer.run_forked(path, seq, tear, wait_s, batch=BATCH, tear_chunk=61,
+                                            hold=hold if i % 4 == 1 else None):
             eid, s = line.split()
             confirmed[eid] = int(s)
             seq = max(seq, int(s) + BATCH)

@@ -163,7 +163,7 @@ def test_averaged_sights_replace_the_runs(blundered_runs):
     runs = check_runs(rows)
     out = rows_with_runs_averaged(rows, runs)
     assert len(out) == 3
-    assert all(r.note.startswith("average of rows") for r in out)
+    assert all(r.note.startswith("average of the shots on lines") for r in out)
 
 
 def test_cli_series_json_contract(tmp_path, capsys):
@@ -219,5 +219,7 @@ def test_example_file_flags_the_planted_shot(capsys):
     path = Path(__file__).resolve().parent.parent / "examples" / "dusk-run.csv"
     assert main(["series", str(path), "--json"]) == 0
     (run,) = json.loads(capsys.readouterr().out)["runs"]
-    assert [s["row"] for s in run["sights"] if s["flagged"]] == [3]
+    # `row` is the file's line as an editor numbers it (issue 10's contract): the header is
+    # line 1, so the third shot is line 4.
+    assert [s["row"] for s in run["sights"] if s["flagged"]] == [4]
     assert run["sights"][2]["residual_arcmin"] == pytest.approx(3.0, abs=0.15)

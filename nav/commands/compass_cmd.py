@@ -73,7 +73,7 @@ def run_compass(args) -> int:
     eye = parse_height_m(args.eye_height_m, "eye_height_m")
     c = compass_check(body, utc, lat, lon, bearing, variation_deg=var, heading_deg=heading,
                       amplitude=args.amplitude, horizon=horizon, eye_height_m=eye)
-    return va.emit(args, lambda: compass_dict(c), lambda: compass_lines(c))
+    return va.emit(args, lambda: compass_dict(c), lambda: compass_lines(c), [c.utc])
 
 
 def run_deviations(args) -> int:

@@ -34,4 +34,5 @@ def run_equal(args) -> int:
     lat, lon = va.read_dr(args)
     course, speed = va.read_motion(args)
     r = equal_altitudes(t1, t2, lat, lon, course_deg=course, speed_kn=speed)
-    return va.emit(args, lambda: equal_altitudes_dict(r), lambda: equal_altitudes_lines(r))
+    return va.emit(args, lambda: equal_altitudes_dict(r), lambda: equal_altitudes_lines(r),
+                   [t1, t2])

@@ -40,4 +40,4 @@ def run_identify(args) -> int:
     lat, lon = va.read_dr(args)
     eye, ie = va.read_eye_ie(args)
     r = identify(utc, hs, zn, lat, lon, index_error_arcmin=ie, eye_height_m=eye)
-    return va.emit(args, lambda: identify_dict(r), lambda: identify_lines(r))
+    return va.emit(args, lambda: identify_dict(r), lambda: identify_lines(r), [r.utc])

@@ -100,8 +100,14 @@ def run_mark(args) -> int:
                              exercise=os.path.basename(args.exercise))
         _write(os.path.join(args.out, "class_summary.csv"),
                sights_to_csv(summary_rows(cm), SUMMARY_COLUMNS))
+    from ..ut1_note import ut1_cautions
+
+    ut1 = ut1_cautions([r.utc for r in rows])      # the reference reductions' instants
     if args.json:
-        json.dump(marks_dict(cm), sys.stdout, indent=1, ensure_ascii=False)
+        d = marks_dict(cm)
+        if ut1 and "warnings" not in d:
+            d["warnings"] = ut1
+        json.dump(d, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
         return 0
     for st in cm.students:
@@ -113,8 +119,9 @@ def run_mark(args) -> int:
     if args.out:
         print(f"  marked sheets and class_summary.csv written to {args.out}")
     print()
-    print(CAUTION)
-    return 0
+    from .vessel_args import close_text
+
+    return close_text(ut1)
 
 
 def run_exercise(args) -> int:
@@ -166,6 +173,11 @@ def run_exercise(args) -> int:
     if codes:
         print(f"  planted: {', '.join(codes)}")
     print()
+    from ..ut1_note import ut1_text
+
+    for line in ut1_text([r.utc for r in rows]):     # the answer key's instants
+        print(line)
+        print()
     print(CAUTION)
     return 0
 

@@ -44,4 +44,5 @@ def run_meridian(args) -> int:
     eye, ie = va.read_eye_ie(args)
     track, zd = noon_track(day, lat, lon, course, speed, va.read_zone(args))
     t = body_transit(body, day, track, zd, eye_height_m=eye, index_error_arcmin=ie)
-    return va.emit(args, lambda: transit_dict(t), lambda: transit_lines(t))
+    return va.emit(args, lambda: transit_dict(t), lambda: transit_lines(t),
+                   [t.utc, track.utc])

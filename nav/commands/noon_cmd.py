@@ -6,11 +6,8 @@ options, calls it and prints through :mod:`nav.render`.
 
 from __future__ import annotations
 
-import json
-import sys
 from datetime import datetime, time, timedelta
 
-from .. import CAUTION
 from ..errors import NavInputError
 from ..noonsight import DATE_EXAMPLE, MERIDIAN_LIMIT_DEG, meridian_latitude, parse_date, predict_noon
 
@@ -106,15 +103,9 @@ def run_noon(args) -> int:
                         course_deg=course, speed_kn=speed,
                         basis=f"DR given for 12:00 LMT ({dr_utc:%Y-%m-%d %H:%M:%S} UTC)",
                         eye_height_m=eye, index_error_arcmin=ie)
-    if args.json:
-        json.dump({**noon_dict(pred), "caution": CAUTION}, sys.stdout, indent=1,
-                  ensure_ascii=False)
-        sys.stdout.write("\n")
-        return 0
-    print("\n".join(noon_lines(pred)))
-    print()
-    print(CAUTION)
-    return 0
+    from . import vessel_args as va
+
+    return va.emit(args, lambda: noon_dict(pred), lambda: noon_lines(pred), [noon.utc])
 
 
 def run_latitude(args) -> int:
@@ -135,13 +126,9 @@ def run_latitude(args) -> int:
     red = reduce_sight(body, utc, hs, limb=limb, index_error_arcmin=ie, eye_height_m=eye,
                        lat_deg=lat, lon_deg=lon)
     work = meridian_latitude(red, fix_hint="nav fix SIGHTS.csv, with other sights", field="utc")
-    if args.json:
-        json.dump({**meridian_latitude_dict(work), "caution": CAUTION}, sys.stdout, indent=1,
-                  ensure_ascii=False)
-        sys.stdout.write("\n")
-        return 0
-    print("\n".join(meridian_latitude_lines(work, eye_height_m=eye, index_error_arcmin=ie,
-                                            temperature_c=10.0, pressure_hpa=1010.0)))
-    print()
-    print(CAUTION)
-    return 0
+    from . import vessel_args as va
+
+    return va.emit(args, lambda: meridian_latitude_dict(work),
+                   lambda: meridian_latitude_lines(work, eye_height_m=eye, index_error_arcmin=ie,
+                                                   temperature_c=10.0, pressure_hpa=1010.0),
+                   [utc])

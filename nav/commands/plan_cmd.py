@@ -80,7 +80,7 @@ def run_plan(args) -> int:
         from ..plan_plot import save_sketch
 
         save_sketch(p, args.sketch)
-    code = va.emit(args, lambda: plan_dict(p), lambda: plan_lines(p))
+    code = va.emit(args, lambda: plan_dict(p), lambda: plan_lines(p), [p.utc])
     if args.sketch and not args.json:
         print(f"sky sketch: {args.sketch}")
     return code

@@ -35,9 +35,14 @@ def run_series(args) -> int:
                             example="15")
     rows, red = _reduce(args, _load(args))
     runs = check_runs(rows, red, window_min=window)
+    from ..ut1_note import ut1_cautions
+
+    ut1 = ut1_cautions(red.utc)
     if args.json:
-        json.dump({"runs": [series_dict(r) for r in runs], "window_min": window,
-                   "caution": CAUTION}, sys.stdout, indent=1, ensure_ascii=False)
+        d = {"runs": [series_dict(r) for r in runs], "window_min": window}
+        if ut1:
+            d["warnings"] = ut1
+        json.dump({**d, "caution": CAUTION}, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
         return 0
     if not runs:
@@ -46,5 +51,6 @@ def run_series(args) -> int:
         for line in series_lines(run):
             print(line)
         print()
-    print(CAUTION)
-    return 0
+    from .vessel_args import close_text
+
+    return close_text(ut1)

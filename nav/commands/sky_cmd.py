@@ -40,4 +40,5 @@ def run_sky(args) -> int:
     eye = parse_height_m(args.eye_height_m, "eye_height_m")
     track, _ = noon_track(day, lat, lon, course, speed, zd)
     s = sky_day(day, track, zone_description=zd, eye_height_m=eye)
-    return va.emit(args, lambda: sky_dict(s), lambda: sky_lines(s))
+    return va.emit(args, lambda: sky_dict(s), lambda: sky_lines(s),
+                   [[e.utc for e in s.events], s.moon.utc, track.utc])

@@ -76,13 +76,28 @@ def read_eye_ie(args) -> tuple[float, float]:
             spec("index_error")(args.index_error, "index_error"))
 
 
-def emit(args, as_dict, as_lines) -> int:
-    """Print one JSON object (with the caution) or the lines and the caution."""
+def emit(args, as_dict, as_lines, instants=()) -> int:
+    """Print one JSON object (with the caution) or the lines and the caution; with the UT1
+    caution of `instants` (:mod:`nav.ut1_note`) in ``warnings`` or as a ``!`` line."""
+    from ..ut1_note import ut1_cautions
+
+    ut1 = ut1_cautions(*instants)
     if args.json:
-        json.dump({**as_dict(), "caution": CAUTION}, sys.stdout, indent=1, ensure_ascii=False)
+        d = as_dict()
+        if ut1:
+            d["warnings"] = list(d.get("warnings") or []) + ut1
+        json.dump({**d, "caution": CAUTION}, sys.stdout, indent=1, ensure_ascii=False)
         sys.stdout.write("\n")
         return 0
     print("\n".join(as_lines()))
     print()
+    return close_text(ut1)
+
+
+def close_text(ut1_lines) -> int:
+    """End a text report: each UT1 caution line, then nav's caution; exit status 0."""
+    for m in ut1_lines:
+        print(f"! {m}")
+        print()
     print(CAUTION)
     return 0

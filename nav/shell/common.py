@@ -20,3 +20,11 @@ LIVE_HOURS = 12                # a log whose latest entry is older: entered afte
 def iso_z(t: datetime) -> str:
     """An aware datetime as ISO 8601 UTC with Z, to the microsecond (what the log stores)."""
     return t.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%S.%fZ")
+
+
+def ut1_lines(st, *instants) -> list[str]:
+    """The UT1 caution for the instants a command's figures are for (:mod:`nav.ut1_note`),
+    wrapped to the terminal: none while UT1 is measured."""
+    from ..ut1_note import ut1_text
+
+    return [line for text in ut1_text(*instants, indent="  ") for line in st.wrap(text, "    ")]

@@ -18,7 +18,7 @@ from ..timekeeping import format_date_hms, format_hms, parse_utc
 from .times import parse_at, parse_zt, passage_time, watch_text, zone_text
 from .entries import dr_summary, setting_summary, sight_summary
 from .words import OPTIONS
-from .common import Cancelled, iso_z
+from .common import Cancelled, iso_z, ut1_lines
 
 MAX_WARNING = 200
 
@@ -144,7 +144,7 @@ def reduction_report(st, e) -> list[str]:
     lines += reduction_lines(red, eye_height_m=row.eye_height_m,
                              index_error_arcmin=row.index_error_arcmin,
                              temperature_c=row.temperature_c, pressure_hpa=row.pressure_hpa)
-    return lines
+    return lines + ut1_lines(st, row.utc)
 
 
 def show_reduction(st, e) -> None:
@@ -322,7 +322,7 @@ def run_fix(st, req) -> None:
         entry["set_drift"] = {"set_deg": round(sd.set_deg, 2) % 360.0,
                               "drift_kn": round(sd.drift_kn, 3), "since_utc": sd.since_utc}
     e = st.append(entry)
-    st.say(*lines)
+    st.say(*lines, *ut1_lines(st, [parse_utc(x["utc"]) for x in entries], fix.utc))
     first = min(parse_utc(x["utc"]) for x in entries)
     if fix.kind == "running fix" and st.passage.currents_in_force(first, fix.utc):
         st.say("  the earlier lines were advanced along the EP track (the current in force)")
@@ -396,7 +396,7 @@ def run_almanac(st, req) -> None:
 
     t64 = np.array([to_datetime64(req.time.utc)])
     lines = almanac_lines(al.almanac([req.args["body"]], t64), t64[0])
-    st.say(f"time: {req.time.explain}", *lines)
+    st.say(f"time: {req.time.explain}", *lines, *ut1_lines(st, req.time.utc))
 
 
 def run_name(st, req) -> None:

@@ -19,11 +19,13 @@ import textwrap
 from .. import CAUTION
 from ..angles import format_lat, format_lon
 from ..errors import NavInputError
+from .common import ut1_lines
 from ..timekeeping import format_date_hms
 
 
-def _caution(st) -> None:
-    st.say(*textwrap.wrap(CAUTION, 78))
+def _caution(st, *instants) -> None:
+    """The UT1 caution for these instants (none while UT1 is measured), then nav's caution."""
+    st.say(*ut1_lines(st, *instants), *textwrap.wrap(CAUTION, 78))
 
 
 def run_noon(st, req) -> None:
@@ -33,7 +35,7 @@ def run_noon(st, req) -> None:
     day = req.args["date"]
     pred = noon_from_passage(st.passage, day)
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']})", *noon_lines(pred))
-    _caution(st)
+    _caution(st, pred.noon.utc)
 
 
 def _log_note(st, text: str, utc) -> None:
@@ -72,7 +74,7 @@ def run_latitude(st, req) -> None:
         _log_note(st, f"latitude {format_lat(work.lat_deg)} from {e.id} ({what}) at "
                       f"{format_date_hms(work.utc)} UTC: a line of position, not a fix",
                   work.utc)
-    _caution(st)
+    _caution(st, work.utc)
 
 
 def run_longitude(st, req) -> None:
@@ -90,4 +92,4 @@ def run_longitude(st, req) -> None:
         _log_note(st, f"longitude {format_lon(work.lon_deg)} from the Sun's meridian passage "
                       f"timed at {format_date_hms(t.utc)} UTC: a line of position, not a fix",
                   t.utc)
-    _caution(st)
+    _caution(st, work.utc)

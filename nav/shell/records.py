@@ -97,6 +97,11 @@ def run_show(st, req) -> None:
         if stale:
             st.say(*st.wrap(f"  caution: this fix {stale}; strike it and run fix again to use "
                             "the sights as they now stand", "    "))
+        from ..timekeeping import parse_utc
+        from .common import ut1_lines
+
+        st.say(*ut1_lines(st, [parse_utc(x["utc"]) for x in map(st.lookup, cur["sight_ids"])
+                               if x is not None], parse_utc(cur["utc"])))
     if raw.kind == "sight" and cur is not None:
         st.say(f"  time: {time_explain(cur)}")
         show_reduction(st, cur)

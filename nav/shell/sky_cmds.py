@@ -11,15 +11,17 @@ The zone is the one set (`set zone`), else the DR longitude's; the date defaults
 from __future__ import annotations
 
 import textwrap
-from datetime import datetime, time, timedelta
+from datetime import datetime, time, timedelta, timezone
 
 from .. import CAUTION
 from ..errors import NavInputError
+from .common import ut1_lines
 from .parse import Request, parse_noon
 
 
-def _caution(st) -> None:
-    st.say(*textwrap.wrap(CAUTION, 78))
+def _caution(st, *instants) -> None:
+    """The UT1 caution for these instants (none while UT1 is measured), then nav's caution."""
+    st.say(*ut1_lines(st, *instants), *textwrap.wrap(CAUTION, 78))
 
 
 def _zone_set(st) -> bool:
@@ -86,7 +88,7 @@ def run_sky(st, req) -> None:
         lines[0] = lines[0].replace("(from the DR longitude)", "(from the DR longitude; "
                                     "`set zone` to give one)")
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']})", *lines)
-    _caution(st)
+    _caution(st, [e.utc for e in s.events], s.moon.utc)
 
 
 def run_meridian(st, req) -> None:
@@ -101,7 +103,7 @@ def run_meridian(st, req) -> None:
                      pressure_hpa=s.pressure_hpa, horizon=s.horizon)
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']}); DR from the log along the legs",
            *transit_lines(t))
-    _caution(st)
+    _caution(st, t.utc, datetime.combine(day, time(12), tzinfo=timezone.utc))
 
 
 # ---------------------------------------------------------------- compass
@@ -212,7 +214,7 @@ def run_compass(st, req) -> None:
     e = st.append(entry)
     st.say(f"logged {e.id}: compass check, {t.explain}", f"  DR basis     {w.describe()}",
            *compass_lines(c))
-    _caution(st)
+    _caution(st, c.utc)
 
 
 def parse_deviations(args, line, ctx) -> Request:
@@ -264,7 +266,7 @@ def run_identify(st, req) -> None:
                  eye_height_m=s.eye_height_m if s.horizon == "sea" else 0.0,
                  temperature_c=s.temperature_c, pressure_hpa=s.pressure_hpa)
     st.say(f"time: {t.explain}", f"DR basis: {w.describe()}", *identify_lines(r))
-    _caution(st)
+    _caution(st, r.utc)
 
 
 # ---------------------------------------------------------------- plan
@@ -306,7 +308,7 @@ def run_plan(st, req) -> None:
              how=f"{req.args['twilight']} twilight: the Sun's centre at −6° true (civil)")
     st.say(f"date: {day:%Y-%m-%d} ({req.args['why']}); DR from the log along the legs",
            *plan_lines(p))
-    _caution(st)
+    _caution(st, p.utc)
 
 
 # ---------------------------------------------------------------- equal altitudes
@@ -348,4 +350,4 @@ def run_equal(st, req) -> None:
                 "by equal altitudes of the Sun: a line of position, not a fix")
         e = st.append({"kind": "note", "text": text, "utc": r.middle})
         st.say(f"logged {e.id}: note \"{text}\"")
-    _caution(st)
+    _caution(st, t1.utc, t2.utc)
