@@ -28,7 +28,11 @@ from .angles import acosd, asind, cosd, norm180, norm360, sind
 from .errors import NavInputError
 
 REFRACTION_HORIZON_ARCMIN = 34.0     # standard refraction at the horizon (common practice)
-AMPLITUDE_MAX_ALT_DEG = 2.0          # an amplitude is taken with the body on the horizon
+AMPLITUDE_MAX_ALT_DEG = 2.0          # an amplitude is taken with the body on the horizon:
+                                     # farther than this from it (from the DR) it is refused
+AZIMUTH_MIN_ALT_DEG = -1.0           # below this the body is out of sight: refused. Common
+                                     # practice, no source: the Sun's upper limb dips under the
+                                     # sea horizon near −0.8° − dip (refraction 34′ + SD 16′)
 HIGH_LAT_WARN_DEG = 60.0             # common practice, no source: amplitudes grow unreliable
 LARGE_ERROR_DEG = 10.0               # common practice, no source: a check this far out is suspect
 
@@ -113,6 +117,10 @@ def compass_check(body: str, utc: datetime, lat_deg: float, lon_deg: float,
     if not amplitude:
         zn = zn_now
         method = "azimuth"
+        if alt < AZIMUTH_MIN_ALT_DEG:
+            raise NavInputError(f"{name} is {-alt:.1f}° below the horizon at this time from the "
+                                "DR: no bearing of it can be taken; check the body and the time",
+                                field="time", example="a time when the body is in sight")
         if alt < 0:
             notes.append(f"{name} is below the horizon at this time from the DR "
                          f"({alt:.1f}°): check the body and the time")
@@ -141,8 +149,10 @@ def compass_check(body: str, utc: datetime, lat_deg: float, lon_deg: float,
                      else None)
         if abs(alt - h) > AMPLITUDE_MAX_ALT_DEG:
             where = f"{alt:.1f}° above" if alt >= 0 else f"{-alt:.1f}° below"
-            notes.append(f"from the DR {name} stands {where} the horizon at this time, not on "
-                         "it: check the time, or use the azimuth method")
+            raise NavInputError(f"from the DR {name} stands {where} the horizon at this time; "
+                                f"an amplitude needs it within {AMPLITUDE_MAX_ALT_DEG:.0f}° of "
+                                "the horizon: check the time, or use the azimuth method",
+                                field="time", example="the time the body rose or set")
         if abs(lat_deg) > HIGH_LAT_WARN_DEG:
             notes.append("in high latitudes the body crosses the horizon at a shallow angle and "
                          "the amplitude is sensitive to the altitude: prefer the azimuth method")

@@ -343,14 +343,29 @@ def export_sights(log) -> SightExport:
                 reduced[r.row] = reduce_rows([r]).sight(0)
             except NavInputError as err:
                 reduced[r.row] = err
+    labels = _fix_labels(passage, notes)
     rows, table = [], []
     for i, (e, r, p) in enumerate(pairs, 1):
         s = reduced.get(i)
         if isinstance(s, NavInputError):
             notes.append(f"{e.id} ({e['body']} {e['utc']}): not reduced: {s.reason}")
-        rows.append(_batch_row(e, r))
+        rows.append(dict(_batch_row(e, r), fix=labels.get(e.id, "")))
         table.append(_reduction_row(i, e, r, p, s))
     return SightExport(tuple(rows), tuple(table), tuple(notes))
+
+
+def _fix_labels(passage, notes: list[str]) -> dict[str, str]:
+    """sight id -> the id of the effective logged fix it went into, the batch file's ``fix``
+    label (a sight in no fix: no label). A sight in two fixes goes with the later one; a note
+    says so, as a batch row belongs to one fix only."""
+    out: dict[str, str] = {}
+    for f in sorted(passage.fix_entries, key=lambda f: parse_utc(f["utc"])):
+        for sid in f["sight_ids"]:
+            if sid in out:
+                notes.append(f"{sid} went into fixes {out[sid]} and {f.id}; the batch file "
+                             f"labels it {f.id} only")
+            out[sid] = f.id
+    return out
 
 
 def _batch_row(e, r) -> dict:

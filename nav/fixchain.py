@@ -37,16 +37,16 @@ class ChainFix:
 
 
 def split_fixes(rows: Sequence[SightRow]) -> list[tuple[str, tuple[SightRow, ...]]]:
-    """(label, rows) per fix, in file order. Raises on an unlabelled row among labelled ones
-    and on a label that comes back after another fix began."""
+    """(label, rows) per fix, in file order. In a file that labels its fixes, a row with a
+    blank label is in no fix (see :func:`unlabelled_rows`); raises on a label that comes back
+    after another fix began."""
     labels = [r.cells.get("fix", "") for r in rows]
     if not any(labels):
         return [("", tuple(rows))]
     groups: list[tuple[str, list[SightRow]]] = []
     for r, lab in zip(rows, labels):
         if not lab:
-            raise NavInputError("this file labels its fixes: every row needs a fix label",
-                                field="fix", example="dawn").at_row(r.row)
+            continue
         if groups and groups[-1][0] == lab:
             groups[-1][1].append(r)
         elif any(g[0] == lab for g in groups):
@@ -56,6 +56,16 @@ def split_fixes(rows: Sequence[SightRow]) -> list[tuple[str, tuple[SightRow, ...
         else:
             groups.append((lab, [r]))
     return [(lab, tuple(g)) for lab, g in groups]
+
+
+def unlabelled_rows(rows: Sequence[SightRow]) -> list[SightRow]:
+    """The rows in no fix: a blank ``fix`` label in a file that labels its fixes. They are
+    reduced (``nav reduce``) and their course, speed and current carry the DR on, but no fix
+    uses their lines."""
+    labels = [r.cells.get("fix", "") for r in rows]
+    if not any(labels):
+        return []
+    return [r for r, lab in zip(rows, labels) if not lab]
 
 
 def _advance(lat, lon, course, speed, hours, cur: Current | None):
@@ -72,7 +82,7 @@ def _advance(lat, lon, course, speed, hours, cur: Current | None):
 def _chain(rows, currents, start, notes):
     """Rows with DRs run from `start` (lat, lon, utc, course, speed, current) or, without a start,
     from their own given DRs; and each row's EP."""
-    out, eps = [], []
+    out, eps, set_aside = [], [], []
     p = ep = None
     t = course = speed = cur = None
     if start is not None:
@@ -88,8 +98,7 @@ def _chain(rows, currents, start, notes):
             p = _advance(*p, course, speed, hours, None)
             ep = _advance(*ep, course, speed, hours, cur)
             if r.dr_given and start is not None:
-                notes.append(f"row {r.row}: the DR typed here is set aside; the DR restarts at "
-                             "the previous fix")
+                set_aside.append(r.row)
         extra = {}
         if start is not None:           # the DR's age counts from the fix it restarted at
             extra["dr_age_h"] = (r.utc - start[2]).total_seconds() / 3600.0
@@ -97,6 +106,10 @@ def _chain(rows, currents, start, notes):
                            dr_given=r.dr_given and not start, **extra))
         eps.append(ep)
         t, course, speed, cur = r.utc, r.course_deg, r.speed_kn, c
+    if set_aside:
+        notes.append("row" + ("s " if len(set_aside) > 1 else " ")
+                     + ", ".join(map(str, set_aside)) + ": the DR typed there is set aside; "
+                     "the DR restarts at the previous fix")
     return out, eps, (t, course, speed, cur)
 
 
@@ -109,14 +122,29 @@ def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95,
     by_row = {id(r): c for r, c in zip(rows, currents)}
     out: list[ChainFix] = []
     start = None
+    position = {id(r): k for k, r in enumerate(rows)}
+    loose = {id(r) for r in unlabelled_rows(rows)}
+    done = 0                    # rows before this index are already in the DR chain
     for label, group in split_fixes(rows):
         if len(group) < 2:
             raise NavInputError(f"fix '{label}' has only one sight; a fix needs two or more",
                                 field="fix", example="two or more rows per label")\
                 .at_row(group[0].row)
         notes: list[str] = []
-        cur = [by_row[id(r)] for r in group]
-        resolved, eps, state = _chain(group, cur, start, notes)
+        # the DR runs through every row up to the fix's last, those in no fix included (their
+        # course, speed and current carry it on), but the fix takes only its own rows
+        span = rows[done:position[id(group[-1])] + 1]
+        done += len(span)
+        skipped = [r for r in span if id(r) in loose]
+        if skipped:
+            notes.append("row" + ("s " if len(skipped) > 1 else " ")
+                         + ", ".join(str(r.row) for r in skipped)
+                         + ": blank fix label, in no fix (reduced, their lines not used)")
+        cur_all = [by_row[id(r)] for r in span]
+        res_all, eps_all, state = _chain(span, cur_all, start, notes)
+        keep = [k for k, r in enumerate(span) if id(r) not in loose]
+        resolved, eps = [res_all[k] for k in keep], [eps_all[k] for k in keep]
+        cur = [cur_all[k] for k in keep]
         any_current = any(c is not None for c in cur) or (start is not None and start[5])
         runs = None
         if any_current:
@@ -143,4 +171,10 @@ def chain_fixes(rows: Sequence[SightRow], *, confidence: float = 0.95,
         f = result.fix
         # the next fix's DR starts here, at the fix, with the course, speed and current in force
         start = (f.lat_deg, f.lon_deg, f.utc, course, speed, cur_now)
+    tail = [r for r in rows[done:] if id(r) in loose]
+    if tail and out:
+        last = out[-1]
+        out[-1] = replace(last, notes=last.notes + (
+            "row" + ("s " if len(tail) > 1 else " ") + ", ".join(str(r.row) for r in tail)
+            + ": blank fix label after the last fix, in no fix (reduced, their lines not used)",))
     return out

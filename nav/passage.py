@@ -326,6 +326,17 @@ class Passage:
         return out
 
 
+    def dr_resets(self):
+        """Where each anchor after the first reset the DR: (utc, lat, lon) of the DR carried to
+        the anchor's time from the anchor before it, along the legs. The plot draws the step
+        from there to the anchor as a jump, not as track sailed."""
+        out = []
+        for prev, a in zip(self.anchors, self.anchors[1:]):
+            lat, lon = self._sail(prev.lat_deg, prev.lon_deg, prev.utc, a.utc)
+            out.append((a.utc, lat, lon))
+        return out
+
+
 def now_utc() -> datetime:
     return datetime.now(UTC).replace(microsecond=0)
 

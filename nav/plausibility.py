@@ -21,7 +21,8 @@ navigator's ordinary error.
 - A sight whose intercept is beyond ``allowed_nmi`` is *doubtful*: probably wrong. It is said
   why (the body below the horizon at the DR, or the intercept too long) and left out of fixes
   unless the user asks to keep it. Where a slip explains it, the slip is named: zone time typed
-  as UTC (ZD from the DR's longitude, with the Hc it would have), the date a day out, the DR's
+  as UTC (ZD from the DR's longitude, with the Hc it would have), the time 12 hours out (AM for
+  PM), the date a day out, the DR's
   latitude or longitude in the wrong hemisphere, or another body that fits.
 - A fix farther from its DR than ``allowed_nmi`` gets a warning naming the distance.
 """
@@ -42,6 +43,9 @@ DR_DRIFT_KN = 2.0
 MAX_BODIES_NAMED = 3
 MAX_SEARCHED = 20                    # doubtful sights whose slips are searched (each ~70 reductions)
 FAR_FROM_DR = "FAR FROM DR"          # the head of the fix's warning (the renderers find it by it)
+SUN_TWILIGHT_LIMIT_DEG = -6.0     # civil twilight's end; above it (Sun below the horizon) only
+                                 # the brightest stars show, with the Sun up none (common
+                                 # practice, no source; nav's demo dusk stars begin at -5.4°)
 RULE_TEXT = (f"{DR_BASE_NMI:g} nmi + {DR_DRIFT_KN:g} kn \u00d7 the hours since the DR was set "
              "from a position")
 
@@ -71,7 +75,8 @@ class Doubt:
         elif not self.searched:
             out += f" (slips searched for the first {MAX_SEARCHED} doubtful sights only)"
         else:
-            out += "; no single slip (zone time as UTC, a day out, a hemisphere, another body) " \
+            out += "; no single slip (zone time as UTC, 12 hours out, a day out, a hemisphere, " \
+                   "another body) " \
                    "explains it: check Hs, the time and the DR"
         return out
 
@@ -126,6 +131,10 @@ def _variants(row) -> list[tuple[str, object]]:
         out.append((f"the time was zone time typed as UTC: with ZD {zd:+d} (from the DR "
                     f"longitude, UTC = ZT + ZD) the sight's UTC is {utc:%Y-%m-%d %H:%M:%S}",
                     replace(row, utc=utc)))
+    for hours in (-12, 12):             # the 12-hour slip: a morning time taken for evening
+        utc = row.utc + timedelta(hours=hours)
+        out.append((f"the time is 12 hours out (AM/PM): at {utc:%Y-%m-%d %H:%M:%S} UTC",
+                    replace(row, utc=utc)))
     for days in (-1, 1):
         utc = row.utc + timedelta(days=days)
         out.append((f"the date is a day {'early' if days > 0 else 'late'}: at "
@@ -156,6 +165,29 @@ def _slips(row, allowed: float) -> tuple[str, ...]:
     return tuple(t for _, t in named) + tuple(t for x, t in bodies[:MAX_BODIES_NAMED] if x < best)
 
 
+def _daylight(row) -> str:
+    """For a star: the Sun's altitude at the DR when it was above the twilight limit, else ''."""
+    from .almanac import body_almanac, body_kind
+    from .reduction import hc_zn
+
+    try:
+        if body_kind(row.body) != "star":
+            return ""
+        sun = body_almanac("Sun", row.utc)
+        alt = float(np.atleast_1d(hc_zn(row.dr_lat_deg, float(sun.dec_deg),
+                                        float(sun.gha_deg) + row.dr_lon_deg)[0])[0])
+    except NavInputError:
+        return ""
+    if alt <= SUN_TWILIGHT_LIMIT_DEG:
+        return ""
+    if alt < 0.0:
+        return (f"; the Sun was {format_dm(-alt)} below the horizon at the DR then, in civil "
+                "twilight (above " + f"{SUN_TWILIGHT_LIMIT_DEG:.0f}°".replace("-", "\u2212")
+                + "): only the brightest stars show yet")
+    return (f"; the Sun was up, {format_dm(alt)} above the horizon at the DR then: a star is not "
+            "shot in daylight (planets and the Moon can be)")
+
+
 def doubtful_sights(rows: Sequence, reductions) -> tuple[Doubt, ...]:
     """The sights of `rows` (SightRows with their `dr_age_h`) that their DR cannot explain, each
     with its reason and the slips that would explain it. `reductions`: the rows reduced."""
@@ -174,6 +206,7 @@ def doubtful_sights(rows: Sequence, reductions) -> tuple[Doubt, ...]:
         else:
             reason = (f"intercept {abs(float(x[i])):.1f} nmi, more than "
                       f"{_allowed_text(row.dr_age_h)}")
+        reason += _daylight(row)
         if len(out) < MAX_SEARCHED:
             out.append(Doubt(i, reason, _slips(row, allowed)))
         else:

@@ -44,6 +44,7 @@ ELLIPSE_FILL = "#f2c0a5"
 # a reference track: a thin dash-dotted purple line (Tol's purple), unlike the solid DR track.
 KNOWN_FILL, KNOWN_EDGE, REF_C = "#F0E442", "#1A1A1A", "#AA3377"
 REF_STYLE = dict(color=REF_C, lw=1.2, ls=(0, (7, 2, 1.5, 2)))
+JUMP_STYLE = dict(color=TRACK_C, lw=1.0, ls=(0, (3, 2.5)))     # the DR's reset at a fix
 LABEL_BOX = dict(boxstyle="square,pad=0.15", fc="white", ec="none", alpha=0.85)
 SUMMARY_TEXT = dict(fontsize=8.5, family="DejaVu Sans Mono", gid="summary",
                     bbox=dict(boxstyle="round,pad=0.4", fc="#f4f6f8", ec="#8a99a6", lw=0.8))
@@ -70,6 +71,7 @@ KEY = {   # legend entries: styles of the proxy artists
     "ellipse": dict(patch=True, fc=ELLIPSE_FILL, ec=WARN, alpha=0.6, label="error ellipse"),
     "known": _mark("*", KNOWN_EDGE, "known position", ms=13, mfc=KNOWN_FILL, mew=0.9),
     "ref": dict(REF_STYLE, label="reference track"),
+    "jump": dict(JUMP_STYLE, label="DR reset at a fix (not sailed)"),
 }
 
 

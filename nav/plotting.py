@@ -21,8 +21,8 @@ from .angles import cosd, format_lat, format_lon, norm180, sind
 from .errors import NavInputError
 from .export import ExportPoint, as_point
 from .fix import LOP, Fix
-from .plot_layout import (DPI, DR_C, ELLIPSE_FILL, FIX_C, GREY, KEY, KNOWN_EDGE, KNOWN_FILL,
-                          LINE_COLOURS, REF_STYLE, SUMMARY_TEXT, TRACK_C, WARN, WARNINGS_TEXT,
+from .plot_layout import (DPI, DR_C, ELLIPSE_FILL, FIX_C, GREY, JUMP_STYLE, KEY, KNOWN_EDGE,
+                          KNOWN_FILL, LINE_COLOURS, REF_STYLE, SUMMARY_TEXT, TRACK_C, WARN, WARNINGS_TEXT,
                           Sheet, clip_line, fit_limits, lat_tick_label, new_chart, side_panel)
 from .sailing import rhumb_line
 from .timekeeping import UTC, format_hm, round_to_second
@@ -365,13 +365,37 @@ def _as_fix_point(f, i: int) -> ExportPoint:
     return as_point(f, f"fixes[{i}]")
 
 
-def passage_distance_nmi(track) -> float:
-    """Distance run along the points in time order: the sum of their rhumb-line legs (nmi)."""
-    pts = sorted(track, key=lambda p: p.utc)
+def passage_distance_nmi(track, resets=()) -> float:
+    """Distance run along the points in time order: the sum of their rhumb-line legs (nmi),
+    the DR legs only: where `resets` (points: the DR carried to an anchor's time) shows a fix
+    reset the DR, the leg ends at that DR, and the jump to the fix is not counted."""
+    return float(sum(_legs_nmi(seg) for seg in _sailed(sorted(track, key=lambda p: p.utc),
+                                                      resets)[0]))
+
+
+def _legs_nmi(pts) -> float:
     if len(pts) < 2:
         return 0.0
     lat, lon = np.array([p.lat_deg for p in pts]), np.array([p.lon_deg for p in pts])
     return float(np.sum(rhumb_line(lat[:-1], lon[:-1], lat[1:], lon[1:])[1]))
+
+
+def _sailed(track, resets):
+    """(segments of sailed track, jumps): the track cut at each point that `resets` names (same
+    time), each cut segment ending at the carried DR; a jump is (carried DR, the new anchor)."""
+    at = {r.utc: r for r in resets}
+    segs, jumps, cur = [], [], []
+    for p in track:
+        r = at.get(p.utc)
+        if r is not None and cur and (r.lat_deg, r.lon_deg) != (p.lat_deg, p.lon_deg):
+            cur.append(r)
+            segs.append(cur)
+            jumps.append((r, p))
+            cur = []
+        cur.append(p)
+    if cur:
+        segs.append(cur)
+    return segs, jumps
 
 
 FIX_MARKER_PT = 10            # the fix markers of the passage plot (points)
@@ -386,14 +410,16 @@ def _unwrapped(points, start_x: float) -> list[float]:
 
 
 @_text_rc
-def plot_passage(track, fixes, *, reference_track=None,
+def plot_passage(track, fixes, *, resets=(), reference_track=None,
                  reference_label: str = KEY["ref"]["label"], title: str = "",
                  path=None, replace: bool = False, replace_hint: str | None = None,
                  figure=None) -> "Figure":
     """The DR track (points joined in time order), the fixes and running fixes, the distance run.
 
     `track`: :class:`nav.export.ExportPoint` (or dicts of its fields); `fixes`: ExportPoints or
-    :class:`nav.fix.Fix` results. `reference_track`: points of another track to compare with
+    :class:`nav.fix.Fix` results. `resets`: points (same form) of the DR carried to the time of
+    a fix that reset it (:meth:`nav.passage.Passage.dr_resets`): the track is sailed up to
+    there, and the step to the fix is drawn dashed, a jump, not counted in the distance run. `reference_track`: points of another track to compare with
     (a track known independently, e.g. a true one), in the same form as `track`, drawn as a thin
     dash-dotted line named `reference_label` in the key. A fix's error ellipse is drawn only
     where it shows beyond the fix's marker at the plot's scale (then the key names it); else the
@@ -426,8 +452,22 @@ def plot_passage(track, fixes, *, reference_track=None,
     rx = _unwrapped(ref, sheet.x(ref[0].lon_deg)) if ref else []
     ells = outlines(sheet, fxs)
     xs = tx + fxs + rx + [v for o in ells if o is not None for v in o[0]]
+    resets = sorted((as_point(p, f"resets[{i}]") for i, p in enumerate(resets or ())),
+                    key=lambda p: p.utc)
+    segs, jumps = _sailed(track, resets)
+    run_nmi = float(sum(_legs_nmi(seg) for seg in segs))
+    x_of = dict(zip((id(p) for p in track), tx))
+    seg_xy = []
+    for seg in segs:
+        xs_ = [x_of[id(seg[0])]]
+        for a, b in zip(seg, seg[1:]):
+            xs_.append(x_of.get(id(b), xs_[-1] + float(norm180(b.lon_deg - a.lon_deg))))
+        seg_xy.append((xs_, [p.lat_deg for p in seg]))
+    jump_xy = [((sx[-1], x_of[id(b)]), (a.lat_deg, b.lat_deg))
+               for (a, b), (sx, _) in zip(jumps, seg_xy)]
+    xs += [jx[0] for jx, _ in jump_xy]
+    ys += [jy[0] for _, jy in jump_xy]
     xlim, ylim = fit_limits(sheet, xs, ys, min_half_nmi=2.0, margin=0.12)
-    run_nmi = passage_distance_nmi(track)
     t0, t1 = min(p.utc for p in every), max(p.utc for p in every)
 
     title = title or "Passage plot"
@@ -443,9 +483,12 @@ def plot_passage(track, fixes, *, reference_track=None,
         placer.line(rx, ry)
     if track:
         ty = [p.lat_deg for p in track]
-        ax.plot(tx, ty, "-", color=TRACK_C, lw=1.6, zorder=4, gid="track")
+        for sx, sy in seg_xy:
+            ax.plot(sx, sy, "-", color=TRACK_C, lw=1.6, zorder=4, gid="track")
+            placer.line(sx, sy)
+        for jx, jy in jump_xy:
+            ax.plot(jx, jy, zorder=4, gid="track_jump", **JUMP_STYLE)
         ax.plot(tx, ty, "o", ms=3.5, color=TRACK_C, zorder=5)
-        placer.line(tx, ty)
         for x, y in zip(tx, ty):
             placer.block_point((x, y), 3)
     # An ellipse is drawn where it reaches 2 px beyond the ring of the fix's marker; smaller
@@ -473,10 +516,13 @@ def plot_passage(track, fixes, *, reference_track=None,
                      gaps=(4.0, 14.0, 28.0), color=TRACK_C, gid="track_label")
 
     n_run = sum(p.kind == "running_fix" for p in fixes)
-    keys = (["track"] if track else []) + (["ref"] if ref else []) + \
+    keys = (["track"] if track else []) + (["jump"] if jumps else []) + \
+        (["ref"] if ref else []) + \
         (["fix"] if len(fixes) > n_run else []) + (["rfix"] if n_run else []) + \
         (["warned"] if any(p.warnings for p in fixes) else []) + (["ellipse"] if any(shown) else [])
-    summary = [f"Distance run {run_nmi:.1f} nmi", "  (sum of the rhumb-line legs of the track)",
+    summary = [f"Distance run {run_nmi:.1f} nmi", "  (sum of the rhumb-line legs of the DR"
+               + (";" if jumps else ")"),
+               *(["   a fix's reset of the DR, dashed, not counted)"] if jumps else []),
                f"From {when(t0, 'day')} to {when(t1, 'day')} UTC",
                f"Track points {len(track)}, fixes {len(fixes) - n_run}, running fixes {n_run}"]
     hidden = [p.ellipse_semi_major_nmi for p, o, show in zip(fixes, ells, shown)

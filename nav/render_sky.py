@@ -35,6 +35,13 @@ def _iso_naive(t) -> str:
     return (t + timedelta(microseconds=500_000)).strftime("%Y-%m-%dT%H:%M:%S")
 
 
+def _utc_cell(e) -> str:
+    """The event's UTC to the minute, with its date (``00:53 (21 Jun)``) when that is not the
+    zone time's date."""
+    u, z = e.utc + timedelta(seconds=30), e.zone_time + timedelta(seconds=30)
+    return f"{u:%H:%M}" + (f" ({u.day} {u:%b})" if u.date() != z.date() else "")
+
+
 def motion_text(track) -> str:
     if track.speed_kn > 0:
         return f"{track.course_deg:05.1f}° at {track.speed_kn:g} kn"
@@ -50,13 +57,20 @@ def sky_lines(s) -> list[str]:
            f"  DR at 12:00 ZT {format_lat(tr.lat_deg)} {format_lon(tr.lon_deg)}, "
            f"{motion_text(tr)}; each event at the DR then",
            "",
-           f"  {'event':<26}{'ZT':<7}{'UTC':<7}{'DR then':<25}Zn"]
-    for e in s.events:
+           ""]
+    cells = [_utc_cell(e) for e in s.events]
+    wide = max((len(c) for c in cells), default=0) + 2
+    wide = max(wide, 7)
+    out[-1] = f"  {'event':<26}{'ZT':<7}{'UTC':<{wide}}{'DR then':<25}Zn"
+    for e, cell in zip(s.events, cells):
         zn = f"{e.zn_deg:03.0f}°"
         if "meridian" in e.event:
             zn += " (S)" if abs(e.zn_deg - 180.0) < 90.0 else " (N)"
-        out.append(f"  {EVENT_WORDS[e.event]:<26}{_minute(e.zone_time):<7}{_minute(e.utc):<7}"
+        out.append(f"  {EVENT_WORDS[e.event]:<26}{_minute(e.zone_time):<7}{cell:<{wide}}"
                    f"{format_lat(e.lat_deg) + ' ' + format_lon(e.lon_deg):<25}{zn}")
+    if any("(" in c for c in cells):
+        out.append("  (a UTC date in brackets: that event's UTC falls on another date than its "
+                   "zone time)")
     if s.absent:
         out.append("")
         out.append("  Not on this date:")

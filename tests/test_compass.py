@@ -117,21 +117,40 @@ def test_amplitude_refused_when_the_body_does_not_set():
     assert e.value.field == "dr_lat"
 
 
-def test_amplitude_warns_when_the_body_is_high():
-    c = compass_check("Sun", datetime(2026, 6, 21, 14, tzinfo=UTC), 41.2, -32.1, 180.0,
+def test_amplitude_refused_when_the_body_is_high():
+    # 14:00 UTC at 41°12' N 032°06' W in June: the Sun near its meridian passage, some 70° up
+    # (common practice, no source): far from the horizon, no amplitude
+    with pytest.raises(NavInputError) as e:
+        compass_check("Sun", datetime(2026, 6, 21, 14, tzinfo=UTC), 41.2, -32.1, 180.0,
                       amplitude=True)
-    assert any("above the horizon at this time, not on it" in w for w in c.warnings)
+    assert "above the horizon" in e.value.reason and "within 2°" in e.value.reason
 
 
-def test_amplitude_warning_says_below_for_a_body_under_the_horizon():
+def test_amplitude_refused_for_a_body_under_the_horizon():
     # Sunset at 41°12' N 032°06' W on 2026-06-21 is about 21:48 UTC (nav sky, checked against
     # astropy in test_sky); at 23:30 UTC the Sun is well below the horizon (its centre near
-    # -14°, common practice: an hour and a half after sunset in summer mid-latitudes), so the
-    # warning must say "below", never a negative height "high".
-    c = compass_check("Sun", datetime(2026, 6, 21, 23, 30, tzinfo=UTC), 41.2, -32.1, 300.0,
+    # -14°, common practice: an hour and a half after sunset in summer mid-latitudes): refused,
+    # and the line says "below", never a negative height
+    with pytest.raises(NavInputError) as e:
+        compass_check("Sun", datetime(2026, 6, 21, 23, 30, tzinfo=UTC), 41.2, -32.1, 300.0,
                       amplitude=True)
-    note = next(w for w in c.warnings if "the horizon at this time" in w)
-    assert "below the horizon" in note and "-" not in note.split("below")[0]
+    reason = e.value.reason
+    assert "below the horizon" in reason and "-" not in reason.split("below")[0]
+
+
+def test_azimuth_refused_for_a_body_under_the_horizon():
+    # the same Sun, 1 h 40 min after sunset (common practice, no source: some 14° down)
+    with pytest.raises(NavInputError) as e:
+        compass_check("Sun", datetime(2026, 6, 21, 23, 30, tzinfo=UTC), 41.2, -32.1, 300.0)
+    assert "below the horizon" in e.value.reason
+
+
+def test_amplitude_accepted_at_sunset():
+    # about 21:48 UTC (see above) the Sun is on the horizon (its centre some 0.8° to 1.5°
+    # under the celestial horizon at sunset, common practice): an amplitude, no refusal
+    c = compass_check("Sun", datetime(2026, 6, 21, 21, 48, tzinfo=UTC), 41.2, -32.1, 300.0,
+                      amplitude=True)
+    assert c.method == "amplitude" and -2.0 < c.alt_deg < 0.0
 
 
 def test_cli_compass_json_contract(capsys):

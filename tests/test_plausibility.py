@@ -189,3 +189,25 @@ def test_the_shell_leaves_a_doubtful_sight_out_and_keeps_it_when_asked(tmp_path)
         assert "from 5 sights" in out and "kept though doubtful" in out
     finally:
         log.close()
+
+
+def test_a_star_timed_twelve_hours_out_is_named_and_the_daylight_said():
+    # Vega shot at dusk, 21:09:57 UTC, typed as 09:09:57 (the AM/PM slip). The 12-hour slip must
+    # be named with the sight's true time; and at 09:10 UTC at 35°10′ N 021°34′ W in June (about
+    # 07:44 local mean time, two and a half hours after sunrise) the Sun is well up (common
+    # practice, no source: some 30° up), so the reason says a star is not shot in daylight.
+    rows, doubts = _doubts(STARS.replace("2026-06-20T21:09:57Z", "2026-06-20T09:09:57Z"))
+    (d,) = doubts
+    assert rows[d.index].body == "Vega"
+    assert any("12 hours out (AM/PM)" in s and "2026-06-20 21:09:57" in s and "Hc " in s
+               for s in d.slips), d.slips
+    assert "the Sun was up" in d.reason and "above the horizon" in d.reason
+    assert "a star is not shot in daylight" in d.reason
+    # the Sun itself, or a star at night, gets no daylight note
+    _, sun_doubts = _doubts(SUN.replace("2026-06-20T13:31:32Z", "2026-06-21T01:31:32Z"))
+    assert sun_doubts and all("a star is not shot" not in x.reason for x in sun_doubts)
+    # at dusk (the example's Vega, 21:09:57 UTC: about half an hour after sunset, common
+    # practice) a star taken for another is in civil twilight, not daylight
+    _, star_doubts = _doubts(STARS.replace(",Vega,", ",Altair,", 1))
+    (x,) = star_doubts
+    assert "a star is not shot" not in x.reason and "civil twilight (above \u22126°)" in x.reason

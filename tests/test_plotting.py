@@ -667,3 +667,35 @@ def test_passage_draws_an_ellipse_that_shows_and_names_it_in_the_key():
     summary = " ".join(t.get_text() for t in by_gid(fig, "summary"))
     assert "not drawn" not in summary
     check_texts(fig)
+
+
+def test_passage_distance_counts_the_dr_legs_not_a_fix_reset():
+    # Invented scenario: the sloop Grey Petrel leaves 36°00′ N 015°00′ W at 00:00 UTC steering
+    # 000° at 6 kn; at 02:00 a fix puts her at 36°12′ N 015°05′ W, 5′ of longitude west of her DR
+    # (36°12′ N 015°00′ W). Sailed: two hours at 6 kn, 12 nmi due north (common practice: 1′
+    # of latitude is 1 nmi along a meridian). The 4 nmi step from the DR to the fix is a reset
+    # of the DR, not distance run, and is drawn dashed.
+    from nav.plotting import passage_distance_nmi, plot_passage
+
+    t0 = T(2026, 5, 3, 0, 0, tzinfo=UTC)
+    track = [ExportPoint(t0, 36.0, -15.0, "dr", ""),
+             ExportPoint(t0 + timedelta(hours=1), 36.1, -15.0, "dr", ""),
+             ExportPoint(t0 + timedelta(hours=2), 36.2, -15.0 - 5 * ARCMIN, "fix", "")]
+    resets = [ExportPoint(t0 + timedelta(hours=2), 36.2, -15.0, "dr", "")]
+    tol_nmi = 0.01 * NMI              # rhumb lines on the sphere vs the meridian: far closer
+    assert abs(passage_distance_nmi(track, resets) - 12.0) < tol_nmi
+    # without the reset the last leg runs straight to the fix: 6 nmi + about 7.2 nmi
+    assert passage_distance_nmi(track) > 12.0 + 1.0
+    fig = plot_passage(track, [], resets=resets, title="Grey Petrel")
+    jumps = by_gid(fig, "track_jump")
+    assert len(jumps) == 1
+    (x0, x1), (y0, y1) = jumps[0].get_xdata(), jumps[0].get_ydata()
+    coord = 10.0 ** -COORD_DECIMALS              # points are kept to 6 decimals (nav.export)
+    assert abs(y0 - 36.2) < coord and abs(y1 - 36.2) < coord
+    assert abs((x0 - x1) - 5 * ARCMIN) < coord
+    assert jumps[0].get_linestyle() == "--"                  # dashed, unlike the sailed track
+    sailed = by_gid(fig, "track")
+    assert all(abs(max(s.get_xdata()) - min(s.get_xdata())) < EXACT for s in sailed)
+    import matplotlib.pyplot as plt
+
+    plt.close(fig)

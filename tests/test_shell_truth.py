@@ -248,3 +248,38 @@ def test_every_example_in_the_help_is_accepted(state):
             assert state.check(example) is None, (example, state.check(example))
     out = run_lines(state, "help")
     assert all(f"  {name} " in out for name in COVERED)
+
+
+# ---------------------------------------------------------------- compass: body off the horizon
+
+def test_compass_amplitude_refused_with_the_sun_far_below_the_horizon(state):
+    # at 23:30 UTC near 41°30' N 032°03' W in mid-June the local mean time is about 21:22 and the
+    # Sun set near 19:30 LMT (common practice, no source: some 15° below by then): no amplitude,
+    # and by azimuth no bearing either; one line each, nothing logged
+    run_lines(state, DR_LINE)
+    n = len(state.log.entries)
+    out = run_lines(state, "compass Sun 300 heading 250 amplitude at 23:30:00")
+    assert "below the horizon" in out and "within 2°" in out and "Traceback" not in out
+    out = run_lines(state, "compass Sun 300 heading 250 at 23:30:00")
+    assert "below the horizon" in out and "no bearing" in out
+    assert len(state.log.entries) == n
+
+
+# ---------------------------------------------------------------- the caution with a position
+
+def test_every_output_with_a_position_carries_the_caution_once(state):
+    # the brief's safety rule (every surface that shows a position carries nav.CAUTION): the
+    # `dr`, `sight` and `show` outputs show positions; each ends with the caution, once
+    from nav import CAUTION
+
+    first = CAUTION.split()[0] + " " + CAUTION.split()[1]          # "CAUTION: nav"
+    hs = synthetic_hs()
+    with_position = 0
+    for line in (DR_LINE, f"sight Vega {hs['Vega'][0]} at 22:55:00", "show e0002", "show e0003"):
+        out = run_lines(state, line)
+        shows = re.search(r"\d°\d\d\.\d′ [NS]\b.*\d{3}°\d\d\.\d′ [EW]\b", out)
+        with_position += bool(shows)
+        assert out.count(first) == (1 if shows else 0), (line, out)
+    assert with_position == 4
+    out = run_lines(state, "note swell from the west")           # no position: no caution
+    assert first not in out

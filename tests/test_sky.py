@@ -300,3 +300,34 @@ def test_range_ends_are_searched_up_to_the_edge():
     assert all(e.utc >= FIRST_INSTANT for e in sky.events)
     assert "sunset" in [e.event for e in sky.events]
     assert "sunrise" in sky.absent and "not searched" in sky.absent_reasons["sunrise"]
+
+
+def test_cli_sky_text_gives_the_utc_date_when_it_is_not_the_zone_date(capsys):
+    # Invented scenario: the schooner Palila hove to at 21°00′ N 157°00′ W, zone +10. UTC =
+    # ZT + ZD (common practice): an event after 14:00 ZT falls on the next UTC date, one before
+    # it on the same date. Each row's UTC is checked against its own ZT + 10 h, and the date
+    # is shown exactly when the UTC date is not the zone date.
+    import json
+    import re
+    from datetime import datetime
+
+    from nav.cli import main
+
+    argv = ["sky", "--date", "2026-06-20", "--dr-lat", "21 00 N", "--dr-lon", "157 00 W"]
+    assert main(argv) == 0
+    text = capsys.readouterr().out
+    rows = re.findall(r"^  ([a-zA-Z' ]+?)\s+(\d\d:\d\d)  (\d\d:\d\d)( \((\d+) Jun\))?\s", text,
+                      re.M)
+    assert len(rows) >= 6
+    nextday = 0
+    for _, zt, utc, dated, day in rows:
+        z = datetime.strptime(f"2026-06-20 {zt}", "%Y-%m-%d %H:%M")
+        u = z + timedelta(hours=10)
+        assert f"{u:%H:%M}" == utc
+        assert bool(dated) == (u.day != 20) and (not dated or int(day) == u.day)
+        nextday += bool(dated)
+    assert nextday >= 3                      # sunset and twilights at least (all after 14:00)
+    assert main(argv + ["--json"]) == 0      # JSON: full ISO 8601 times carry their dates
+    for e in json.loads(capsys.readouterr().out)["events"]:
+        assert re.fullmatch(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\dZ", e["utc"])
+        assert re.fullmatch(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d", e["zone_time"])

@@ -114,7 +114,8 @@ def _cli_runs(t: datetime):
         "meridian": ["meridian", "Vega", "--date", day, *dr],
         "plan": ["plan", "--utc", _iso(t), *dr],
         "identify": ["identify", "--utc", _iso(t), "--hs", "45 00.0", "--zn", "060", *dr],
-        "compass": ["compass", "--body", "Vega", "--utc", _iso(t), "--bearing", "060", *dr],
+        # Polaris: always up at 30° N (a body below the horizon is refused by compass)
+        "compass": ["compass", "--body", "Polaris", "--utc", _iso(t), "--bearing", "001", *dr],
         "latitude": ["latitude", "--body", "Polaris", "--utc", _iso(t), "--hs", "30 30.0", *dr],
         "equal": ["equal-altitudes", "--first", _iso(t.replace(hour=12)),
                   "--second", _iso(t.replace(hour=18)), *dr],

@@ -293,7 +293,8 @@ def replay_demo(out_dir: Path, say=print, replace: bool = False,
                for t, lat, lon, basis in passage.track_points()]
         plot_path = out_dir / "passage.png"
         truth = [ExportPoint(p.utc, p.lat_deg, p.lon_deg, "other", "") for p in track]
-        pool.draw("plot_passage", pts, replayed, reference_track=truth, reference_label=TRACK_LABEL,
+        resets = [ExportPoint(t, lat, lon, "dr", "") for t, lat, lon in passage.dr_resets()]
+        pool.draw("plot_passage", pts, replayed, resets=resets, reference_track=truth, reference_label=TRACK_LABEL,
                   title=f"{short} (invented demo): Azores to Madeira, DR track, fixes and the "
                         "known track", path=plot_path, replace=replace)
         pool.close()

@@ -59,6 +59,14 @@ def check(table: CommandTable, st, line: str) -> str | None:
 def run_line(table: CommandTable, st, line: str) -> bool:
     """Run one line. False when the shell should end. Never raises (but KeyboardInterrupt in
     line mode, which ends the shell)."""
+    st.shown_position = st.cautioned = False
+    try:
+        return _run_line(table, st, line)
+    finally:
+        st.caution_once()          # a position shown: the caution once, after the output
+
+
+def _run_line(table: CommandTable, st, line: str) -> bool:
     name = line.strip().split(" ", 1)[0][:20] if line.strip() else ""
     try:
         parsed = table.parse_line(line, st)

@@ -225,7 +225,8 @@ def run_plot(st, req) -> None:
     from .checks_cmds import ep_track
 
     ep = ep_track(st.passage, track)          # issue 10: the EP track beside the DR's
-    plot_passage(track, fixes, title=f"{st.vessel}: {st.title}", path=out,
+    resets = [ExportPoint(t, lat, lon, "dr", "") for t, lat, lon in st.passage.dr_resets()]
+    plot_passage(track, fixes, resets=resets, title=f"{st.vessel}: {st.title}", path=out,
                  replace=req.args.get("replace", False), replace_hint=SHELL_REPLACE_HINT,
                  **({"reference_track": ep, "reference_label": "EP track (DR + current)"}
                     if ep else {}))

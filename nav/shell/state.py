@@ -21,6 +21,8 @@ from .common import LIVE_HOURS, QUIT, Cancelled, iso_z  # noqa: F401 - for the s
 from .dispatch import check, run_line
 
 _CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+# a position in navigator notation on one line: 41°12.4′ N ... 032°07.1′ W
+_POSITION = re.compile(r"\d°\d\d\.\d′ [NS]\b.*\d{3}°\d\d\.\d′ [EW]\b")
 
 
 class ShellState:
@@ -41,6 +43,8 @@ class ShellState:
         self._passage: Passage | None = None
         self.refused = 0                   # lines refused or failed (line mode: exit status)
         self.last_error: str | None = None
+        self.shown_position = False        # this command's output showed a position ...
+        self.cautioned = False             # ... and the caution (see dispatch.run_line)
 
     # ------------------------------------------------------------ the passage
     def _named(self, key: str) -> str:
@@ -137,7 +141,19 @@ class ShellState:
     def say(self, *lines: str) -> None:
         for line in lines:
             print(line, file=self.out)
+            if line.startswith("CAUTION:"):
+                self.cautioned = True
+            elif not self.shown_position and _POSITION.search(line):
+                self.shown_position = True
         self.out.flush()
+
+    def caution_once(self) -> None:
+        """nav's caution after a command's output that showed a position, unless it had it."""
+        if self.shown_position and not self.cautioned:
+            from .. import CAUTION
+
+            self.say(*textwrap.wrap(CAUTION, 78))
+        self.shown_position = self.cautioned = False
 
     def wrap(self, text: str, indent: str = "  ") -> list[str]:
         """`text` as lines of the terminal's width (one line when there is no terminal)."""
