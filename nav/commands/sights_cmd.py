@@ -124,6 +124,7 @@ def _ut1_caution(red):
 
 
 def run_reduce(args) -> int:
+    from .vessel_args import close_text
     from ..plausibility import doubtful_sights
     from ..render import reduction_dict, reduction_lines, sight_title
     if getattr(args, "worksheet", False) and args.json:
@@ -141,11 +142,7 @@ def run_reduce(args) -> int:
             for w in red.sight(i).warnings:
                 print(f"  warning: {w}")
             print()
-        if ut1:
-            print(f"! {ut1}")
-            print()
-        print(CAUTION)
-        return 0
+        return close_text([ut1] if ut1 else [])
     doubts = {d.index: d for d in doubtful_sights(rows, red if not args.ap else
                                                    _reduce(args, rows)[1])}
     if args.json:
@@ -172,11 +169,7 @@ def run_reduce(args) -> int:
         if i in doubts:
             print(f"  !! DOUBTFUL (left out of a fix unless asked): {doubts[i].text()}")
         print()
-    if ut1:
-        print(f"! {ut1}")
-        print()
-    print(CAUTION)
-    return 0
+    return close_text([ut1] if ut1 else [])
 
 
 def run_fix(args) -> int:
