@@ -8,7 +8,6 @@ from __future__ import annotations
 
 from datetime import datetime, time, timedelta
 
-from ..errors import NavInputError
 from ..noonsight import DATE_EXAMPLE, MERIDIAN_LIMIT_DEG, meridian_latitude, parse_date, predict_noon
 
 NOON_DESCRIPTION = (
@@ -57,44 +56,19 @@ def register(sub) -> None:
     a.set_defaults(func=run_latitude)
 
 
-def _required(args, names: dict) -> None:
-    for attr, (flag, example) in names.items():
-        if getattr(args, attr) in (None, ""):
-            raise NavInputError(f"{flag} is required", field=flag.lstrip("-").replace("-", "_"),
-                                example=f"{flag} {example}")
-
-
-def _spec(name: str):
-    from ..fields import SIGHT_FIELD_BY_NAME
-
-    return SIGHT_FIELD_BY_NAME[name].parse
-
-
-def _instrument(args) -> tuple[float, float]:
-    from ..angles import parse_height_m
-
-    return (parse_height_m(args.eye_height_m, "eye_height_m"),
-            _spec("index_error")(args.index_error, "index_error"))
-
-
 def run_noon(args) -> int:
-    from ..angles import parse_lat, parse_lon
     from ..meridian import local_apparent_noon
     from ..render import noon_dict, noon_lines
-    from ..timekeeping import UTC, parse_zone_description
+    from ..timekeeping import UTC
+    from . import vessel_args as va
 
-    _required(args, {"date": ("--date", DATE_EXAMPLE), "dr_lat": ("--dr-lat", "'41 12.5 N'"),
-                     "dr_lon": ("--dr-lon", "'032 07.1 W'")})
+    va.required(args, {"date": ("--date", DATE_EXAMPLE), "dr_lat": ("--dr-lat", "'41 12.5 N'"),
+                       "dr_lon": ("--dr-lon", "'032 07.1 W'")})
     day = parse_date(args.date, "date")
-    lat, lon = parse_lat(args.dr_lat, "dr_lat"), parse_lon(args.dr_lon, "dr_lon")
-    if (args.course is None) != (args.speed is None):
-        raise NavInputError("give --course and --speed together (or neither: hove to)",
-                            field="course" if args.course is None else "speed",
-                            example="--course 245 --speed 6.5")
-    course = _spec("course_deg")(args.course, "course") if args.course is not None else None
-    speed = _spec("speed_kn")(args.speed, "speed") if args.speed is not None else 0.0
-    zd = parse_zone_description(args.zone, "zone") if args.zone is not None else None
-    eye, ie = _instrument(args)
+    lat, lon = va.read_dr(args)
+    course, speed = va.read_motion(args)
+    zd = va.read_zone(args)
+    eye, ie = va.read_eye_ie(args)
     dr_utc = datetime.combine(day, time(12), tzinfo=UTC) - timedelta(hours=lon / 15.0)
     moving = course is not None and speed > 0
     noon = local_apparent_noon(dr_utc, lat, lon, course if moving else 0.0,
@@ -103,31 +77,27 @@ def run_noon(args) -> int:
                         course_deg=course, speed_kn=speed,
                         basis=f"DR given for 12:00 LMT ({dr_utc:%Y-%m-%d %H:%M:%S} UTC)",
                         eye_height_m=eye, index_error_arcmin=ie)
-    from . import vessel_args as va
-
     return va.emit(args, lambda: noon_dict(pred), lambda: noon_lines(pred), [noon.utc])
 
 
 def run_latitude(args) -> int:
-    from ..angles import parse_lat, parse_lon
     from ..fields import check_limb, parse_body, parse_limb, parse_sight_utc
     from ..reduction import reduce_sight
     from ..render import meridian_latitude_dict, meridian_latitude_lines
+    from . import vessel_args as va
 
-    _required(args, {"body": ("--body", "Sun"), "utc": ("--utc", "2026-06-21T13:41:36Z"),
-                     "hs": ("--hs", "'75 45.3'"), "dr_lat": ("--dr-lat", "'37 20.3 N'"),
-                     "dr_lon": ("--dr-lon", "'025 05.0 W'")})
+    va.required(args, {"body": ("--body", "Sun"), "utc": ("--utc", "2026-06-21T13:41:36Z"),
+                       "hs": ("--hs", "'75 45.3'"), "dr_lat": ("--dr-lat", "'37 20.3 N'"),
+                       "dr_lon": ("--dr-lon", "'025 05.0 W'")})
     body = parse_body(args.body, "body")
     utc = parse_sight_utc(args.utc, "utc")
-    hs = _spec("hs")(args.hs, "hs")
+    hs = va.spec("hs")(args.hs, "hs")
     limb = check_limb(body, parse_limb(args.limb, "limb") if args.limb is not None else None)
-    eye, ie = _instrument(args)
-    lat, lon = parse_lat(args.dr_lat, "dr_lat"), parse_lon(args.dr_lon, "dr_lon")
+    eye, ie = va.read_eye_ie(args)
+    lat, lon = va.read_dr(args)
     red = reduce_sight(body, utc, hs, limb=limb, index_error_arcmin=ie, eye_height_m=eye,
                        lat_deg=lat, lon_deg=lon)
     work = meridian_latitude(red, fix_hint="nav fix SIGHTS.csv, with other sights", field="utc")
-    from . import vessel_args as va
-
     return va.emit(args, lambda: meridian_latitude_dict(work),
                    lambda: meridian_latitude_lines(work, eye_height_m=eye, index_error_arcmin=ie,
                                                    temperature_c=10.0, pressure_hpa=1010.0),
