@@ -293,26 +293,23 @@ def _intercept_ok(body, t, hs, limb, spec, eye_m, dlat, dlon, kind) -> bool:
     return abs(float(r.intercept_nmi)) >= MIN_INTERCEPT_NMI
 
 
-def exercise_csv(ex: Exercise) -> str:
+def _csv_text(columns, rows) -> str:
     import csv
     import io
 
     out = io.StringIO()
-    w = csv.DictWriter(out, fieldnames=EXERCISE_COLUMNS, lineterminator="\n")
+    w = csv.DictWriter(out, fieldnames=columns, lineterminator="\n")
     w.writeheader()
-    w.writerows(ex.rows)
+    w.writerows(rows)
     return out.getvalue()
+
+
+def exercise_csv(ex: Exercise) -> str:
+    return _csv_text(EXERCISE_COLUMNS, ex.rows)
 
 
 def truth_csv(ex: Exercise) -> str:
-    import csv
-    import io
-
-    out = io.StringIO()
-    w = csv.DictWriter(out, fieldnames=TRUTH_COLUMNS, lineterminator="\n")
-    w.writeheader()
-    w.writerows(ex.truth)
-    return out.getvalue()
+    return _csv_text(TRUTH_COLUMNS, ex.truth)
 
 
 def _plantable(code: str, key: dict) -> bool:
