@@ -259,26 +259,15 @@ def _check_instants(t64: np.ndarray, scalar: bool) -> None:
         raise
 
 
-def _almanac_per_sight(names: np.ndarray, t64: np.ndarray, share: bool | None):
+def _almanac_per_sight(names: np.ndarray, t64: np.ndarray):
     """GHA, Dec, HP, SD per sight.
 
     The per-instant quantities (Earth's state, nutation and precession, GAST) are computed once
     for every distinct instant of all the sights; then one pass serves all the star sights and
-    one pass each solar-system body's sights, each at its own instant only. `share` False
-    computes the per-instant quantities again for each body (kept to check that sharing them
-    changes nothing).
+    one pass each solar-system body's sights, each at its own instant only.
     """
     from .almanac import Instants, places_at
 
-    if share is False:
-        gha, dec = np.empty(names.size), np.empty(names.size)
-        hp, sd = np.full(names.size, np.nan), np.full(names.size, np.nan)
-        for b in dict.fromkeys(names.tolist()):
-            idx = np.flatnonzero(names == b)
-            times, inv = np.unique(t64[idx], return_inverse=True)
-            gha[idx], dec[idx], hp[idx], sd[idx] = places_at(names[idx], Instants(times),
-                                                             inv.ravel())
-        return gha, dec, hp, sd
     times, inv = np.unique(t64, return_inverse=True)
     return places_at(names, Instants(times), inv.ravel())
 
@@ -312,7 +301,7 @@ _CORRECTION_FIELDS = ("index_arcmin", "dip_arcmin", "ha_deg", "refraction_arcmin
                       "augmentation_arcmin", "parallax_arcmin", "ho_deg")
 
 
-def _reduce_chunk(flat: dict, lo: int, hi: int, use_ap: bool, share, scalar: bool):
+def _reduce_chunk(flat: dict, lo: int, hi: int, use_ap: bool, scalar: bool):
     """Reduce sights lo..hi-1 of the flattened inputs; errors name rows of the whole input."""
     from .corrections import correct_altitude
 
@@ -324,7 +313,7 @@ def _reduce_chunk(flat: dict, lo: int, hi: int, use_ap: bool, share, scalar: boo
         if err.row is not None:
             err.row += lo
         raise
-    gha, dec, hp, alm_sd = _almanac_per_sight(names, part["utc"], share)
+    gha, dec, hp, alm_sd = _almanac_per_sight(names, part["utc"])
     lat, lon = part["lat_deg"], part["lon_deg"]
     lha_dr = norm360(gha + lon)
     hc_dr, zn_dr = hc_zn(lat, dec, lha_dr)
@@ -421,15 +410,14 @@ def iter_reduce_sights(bodies, utc, hs_deg, *, chunk: int = CHUNK_SIGHTS, **kw):
 
 def reduce_sights(bodies, utc, hs_deg, *, limb=None, index_error_arcmin=0.0, eye_height_m=0.0,
                   horizon="sea", temperature_c=10.0, pressure_hpa=1010.0, lat_deg, lon_deg,
-                  use_ap: bool = False, share_instants: bool | None = None) -> SightReductions:
+                  use_ap: bool = False) -> SightReductions:
     """Almanac -> Hs to Ho -> Hc, Zn, intercept for many sights in one vectorised call.
 
     `bodies`: names (any spelling nav accepts); `utc`: datetime64 (UTC) or aware datetimes;
     every other input a scalar or a 1-D array, all broadcast together. `lat_deg`/`lon_deg` are
     each sight's DR (also used for the Moon's parallax on the ellipsoid, with Zn from the DR).
     `limb` None means lower for the Sun and Moon. With `use_ap` each sight is reduced from the
-    tables' AP (:func:`reduce_from_ap`), else from the DR. `share_instants` False computes the
-    per-instant quantities once per body instead of once for all sights (same numbers).
+    tables' AP (:func:`reduce_from_ap`), else from the DR.
     Errors name the field and the sight's 1-based position in the input (``row``).
     With all inputs scalar, every field of the result is a scalar. Large inputs are worked in
     chunks of :data:`CHUNK_SIGHTS` (see also :func:`iter_reduce_sights`).
@@ -440,7 +428,7 @@ def reduce_sights(bodies, utc, hs_deg, *, limb=None, index_error_arcmin=0.0, eye
     warnings: list = []
     for lo in range(0, max(n, 1), CHUNK_SIGHTS):
         hi = min(n, lo + CHUNK_SIGHTS)
-        part, w = _reduce_chunk(flat, lo, hi, use_ap, share_instants, scalar)
+        part, w = _reduce_chunk(flat, lo, hi, use_ap, scalar)
         if not result:
             result = {k: np.empty(n, dtype=np.asarray(v).dtype) for k, v in part.items()}
         for k, v in part.items():

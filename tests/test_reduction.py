@@ -248,11 +248,22 @@ def test_reduce_sights_matches_the_steps_one_by_one():
 
 
 def test_reduce_sights_instant_sharing_gives_the_same_numbers():
-    shared, _ = _batch(share_instants=True)
-    grouped, _ = _batch(share_instants=False)
-    for name in ("gha_deg", "dec_deg", "ho_deg", "hc_deg", "zn_deg"):
-        np.testing.assert_allclose(getattr(shared, name), getattr(grouped, name), rtol=0,
-                                   atol=1e-9 * ARCSEC)
+    # One call shares the per-instant quantities among all bodies; each body reduced in a call
+    # of its own computes them again. Sharing must change nothing.
+    shared, t = _batch()
+    n = len(BODIES)
+    args = dict(index_error_arcmin=np.linspace(-1, 1, n), lat_deg=np.linspace(-40, 50, n),
+                lon_deg=np.linspace(-170, 175, n), hs_deg=np.linspace(20, 60, n))
+    names = np.array(BODIES, dtype=object)
+    for body in dict.fromkeys(BODIES):
+        idx = np.flatnonzero(names == body)
+        grouped = reduce_sights(names[idx], t[idx], args["hs_deg"][idx], limb=None,
+                                index_error_arcmin=args["index_error_arcmin"][idx],
+                                eye_height_m=2.5, lat_deg=args["lat_deg"][idx],
+                                lon_deg=args["lon_deg"][idx])
+        for name in ("gha_deg", "dec_deg", "ho_deg", "hc_deg", "zn_deg"):
+            np.testing.assert_allclose(getattr(shared, name)[idx], getattr(grouped, name),
+                                       rtol=0, atol=1e-9 * ARCSEC)
 
 
 def test_reduce_sights_order_is_kept_when_shuffled():
