@@ -50,3 +50,15 @@ def ut1_cautions(*instants) -> list[str]:
 def ut1_text(*instants, indent: str = "") -> list[str]:
     """The caution lines as the text surfaces show them (``! `` and the line)."""
     return [f"{indent}! {m}" for m in ut1_cautions(*instants)]
+
+
+def ut1_message_and_mask(t64):
+    """For a batch of instants (datetime64, UTC): the UT1 caution line (the latest instant
+    decides) and the mask of the instants it concerns (past the IERS measured values), or
+    (None, None) where UT1 is measured at all of them."""
+    from .ephemeris import ut1_status
+    from .iers import beyond_measured
+
+    message = ut1_status(t64).message
+    return (message, beyond_measured(t64)) if message else (None, None)
+

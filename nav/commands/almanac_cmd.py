@@ -71,6 +71,8 @@ def _expand_bodies(names: list[str]) -> list[str]:
 def run(args) -> int:
     import numpy as np
 
+    from ..ut1_note import ut1_message_and_mask
+
     bodies = _expand_bodies(args.bodies)
     when, single = _instants(args)
     out = sys.stdout
@@ -81,7 +83,7 @@ def run(args) -> int:
         t64 = np.array([np.datetime64(when.replace(tzinfo=None), "us")])
         check_range(t64, "utc")
         results = al.almanac(bodies, t64)
-        ut1 = _ut1_message(t64)
+        ut1 = ut1_message_and_mask(t64)[0]
         if args.json:
             _write_json(out, [(results, t64)], ut1)
         else:
@@ -91,26 +93,12 @@ def run(args) -> int:
     start, stop, step = when
     first = np.datetime64(start.replace(tzinfo=None), "us")
     last = first + (int((stop - start) / step)) * np.timedelta64(int(step.total_seconds() * 1e6), "us")
-    ut1 = _ut1_message(np.array([first, last]))
+    ut1 = ut1_message_and_mask(np.array([first, last]))[0]
     if args.json:
         _write_json(out, chunks, ut1)
     else:
         _write_table(out, chunks, ut1)
     return 0
-
-
-def _ut1_message(t64):
-    """The UT1 caution line for these instants (the latest decides), or None where measured."""
-    from ..ephemeris import ut1_status
-
-    return ut1_status(t64).message
-
-
-def _ut1_mask(t64, message):
-    """Which instants the UT1 caution concerns (those past the IERS measured values)."""
-    from ..iers import beyond_measured
-
-    return beyond_measured(t64) if message else None
 
 
 def table_chunks(bodies, start, stop, step, chunk_rows: int | None = None):
@@ -175,12 +163,13 @@ def _write_json(out, chunks, ut1=None) -> None:
     """A JSON list written piecewise: one chunk of rows at a time, never the whole list. Rows
     past the IERS measured values carry the UT1 caution in ``warnings``."""
     from ..render import utc_strings
+    from ..iers import beyond_measured
 
     out.write("[")
     first = True
     for results, t64 in chunks:
         parts = []
-        mask = _ut1_mask(t64, ut1)
+        mask = beyond_measured(t64) if ut1 else None
         for i, utc in enumerate(utc_strings(t64)):
             for rec in results:
                 d = _row_dict(rec, i, utc)

@@ -113,16 +113,6 @@ def _setting_notes(row) -> dict:
             "temperature_c": row.temperature_c, "pressure_hpa": row.pressure_hpa}
 
 
-def _ut1_caution(red):
-    """The UT1 caution line for these sights' instants (None where UT1 is measured), and the
-    mask of the sights it concerns."""
-    from ..ephemeris import ut1_status
-    from ..iers import beyond_measured
-
-    message = ut1_status(red.utc).message
-    return (message, beyond_measured(red.utc)) if message else (None, None)
-
-
 def run_reduce(args) -> int:
     from .vessel_args import close_text
     from ..plausibility import doubtful_sights
@@ -131,7 +121,9 @@ def run_reduce(args) -> int:
         raise NavInputError("--worksheet is text for reading; use --json alone for data",
                             field="worksheet", example="nav reduce --worksheet sights.csv")
     rows, red = _reduce(args, _load(args), use_ap=args.ap)
-    ut1, ut1_mask = _ut1_caution(red)
+    from ..ut1_note import ut1_message_and_mask
+
+    ut1, ut1_mask = ut1_message_and_mask(red.utc)
     if getattr(args, "worksheet", False):
         from ..marking.reference import work_sheet
         from ..marking.worksheet import worksheet_lines
@@ -236,7 +228,9 @@ def _one_fix(args, c, n_fixes: int) -> dict:
 
     result = c.result
     fix, lops, bias = result.fix, result.lops, None
-    ut1, ut1_mask = _ut1_caution(result.reductions)
+    from ..ut1_note import ut1_message_and_mask
+
+    ut1, ut1_mask = ut1_message_and_mask(result.reductions.utc)
     title = f"{fix.kind.capitalize()} from {args.file}" + (f" ({c.label})" if c.label else "")
     if getattr(args, "bias", False):
         from .fix_extras import with_bias
