@@ -198,10 +198,11 @@ def run_fix(args) -> int:
                         field=err.field) from None
     if runs and not args.json:
         for r in runs:
-            left = [s.row for s in r.shots if s.flagged]
-            print(f"run of {len(r.shots)} sights of {r.body} (rows {r.shots[0].row}\u2013"
-                  f"{r.shots[-1].row}) replaced by its averaged sight"
-                  + (f"; left out row(s) {', '.join(map(str, left))}" if left else ""))
+            line = [s.line if s.line is not None else s.row for s in r.shots]
+            left = [n for n, s in zip(line, r.shots) if s.flagged]
+            print(f"run of {len(r.shots)} sights of {r.body} (lines {line[0]}\u2013"
+                  f"{line[-1]}) replaced by its averaged sight"
+                  + (f"; left out line(s) {', '.join(map(str, left))}" if left else ""))
         print()
     shown = [_one_fix(args, c, len(chain)) for c in chain]
     if args.json:
